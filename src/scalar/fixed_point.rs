@@ -1,0 +1,176 @@
+//! [`Scalar`] for fixed-point types of the `fixed` crate.
+//!
+//! Arithmetic uses the crate's checked operations (overflow is an error); square
+//! root, trigonometry, logarithm and exponential go through the integer-only
+//! routines of `fixed_math`, shared by every format.
+
+use super::fixed_math::{self as fm, Q};
+use super::{Format, Scalar};
+use crate::error::Error;
+use fixed::types::{I8F24, I32F32};
+
+macro_rules! fixed_scalar {
+    ($t:ty, $inner:ty, $total:expr, $frac:expr) => {
+        impl Scalar for $t {
+            const FORMAT: Format = Format::Fixed {
+                total_bits: $total,
+                frac_bits: $frac,
+            };
+            const ZERO: Self = <$t>::ZERO;
+            const ONE: Self = <$t>::from_bits(1 << $frac);
+            const TWO: Self = <$t>::from_bits(2 << $frac);
+            const HALF: Self = <$t>::from_bits(1 << ($frac - 1));
+            const PI: Self =
+                <$t>::from_bits(super::literal_bits(core::f64::consts::PI, Self::FORMAT) as $inner);
+            const FRAC_PI_2: Self = <$t>::from_bits(super::literal_bits(
+                core::f64::consts::FRAC_PI_2,
+                Self::FORMAT,
+            ) as $inner);
+            const RESOLUTION: Self = <$t>::DELTA;
+            const MAX: Self = <$t>::MAX;
+
+            #[inline(always)]
+            fn from_literal_bits(bits: i64) -> Self {
+                <$t>::from_bits(bits as $inner)
+            }
+            fn from_f64(x: f64) -> Result<Self, Error> {
+                fm::f64_to_bits(x, $frac, $total)
+                    .map(|b| <$t>::from_bits(b as $inner))
+                    .ok_or(if x.is_finite() {
+                        Error::Overflow
+                    } else {
+                        Error::NotFinite(crate::Quantity::Value)
+                    })
+            }
+            fn to_f64(self) -> f64 {
+                self.to_num::<f64>()
+            }
+            fn from_i32(x: i32) -> Result<Self, Error> {
+                <$t>::checked_from_num(x).ok_or(Error::Overflow)
+            }
+            fn from_ratio(num: i32, den: i32) -> Result<Self, Error> {
+                if den == 0 {
+                    return Err(Error::DivisionByZero);
+                }
+                // Rounded integer division of num * 2^frac by den, in i128.
+                let n = (num as i128) << $frac;
+                let d = den as i128;
+                let q = (2 * n + d.signum() * n.signum() * d.abs()) / (2 * d);
+                narrow(q)
+            }
+            fn round_to_i32(self) -> Result<i32, Error> {
+                self.checked_round()
+                    .and_then(|r| r.checked_to_num::<i32>())
+                    .ok_or(Error::Overflow)
+            }
+            #[inline]
+            fn add(self, rhs: Self) -> Result<Self, Error> {
+                self.checked_add(rhs).ok_or(Error::Overflow)
+            }
+            #[inline]
+            fn sub(self, rhs: Self) -> Result<Self, Error> {
+                self.checked_sub(rhs).ok_or(Error::Overflow)
+            }
+            #[inline]
+            fn mul(self, rhs: Self) -> Result<Self, Error> {
+                self.checked_mul(rhs).ok_or(Error::Overflow)
+            }
+            #[inline]
+            fn div(self, rhs: Self) -> Result<Self, Error> {
+                if rhs == Self::ZERO {
+                    Err(Error::DivisionByZero)
+                } else {
+                    self.checked_div(rhs).ok_or(Error::Overflow)
+                }
+            }
+            #[inline]
+            fn neg(self) -> Result<Self, Error> {
+                self.checked_neg().ok_or(Error::Overflow)
+            }
+            #[inline]
+            fn abs(self) -> Result<Self, Error> {
+                self.checked_abs().ok_or(Error::Overflow)
+            }
+            fn sqrt(self) -> Result<Self, Error> {
+                if self < Self::ZERO {
+                    return Err(Error::MathDomain);
+                }
+                // sqrt(b / 2^f) * 2^f = sqrt(b * 2^f); two extra bits round to nearest.
+                let wide = (self.to_bits() as u128) << ($frac + 2);
+                let r = (wide.isqrt() + 1) >> 1;
+                narrow(r as i128)
+            }
+            fn sin(self) -> Result<Self, Error> {
+                narrow_q61(fm::sin_cos(wide(self), fm::iterations($frac)).1)
+            }
+            fn cos(self) -> Result<Self, Error> {
+                narrow_q61(fm::sin_cos(wide(self), fm::iterations($frac)).0)
+            }
+            fn asin(self) -> Result<Self, Error> {
+                narrow_q61(fm::asin(wide(self)).ok_or(Error::MathDomain)?)
+            }
+            fn acos(self) -> Result<Self, Error> {
+                narrow_q61(fm::acos(wide(self)).ok_or(Error::MathDomain)?)
+            }
+            fn atan2(self, x: Self) -> Result<Self, Error> {
+                narrow_q61(fm::atan2(wide(self), wide(x)).ok_or(Error::MathDomain)?)
+            }
+            fn ln(self) -> Result<Self, Error> {
+                narrow_q61(fm::ln(wide(self)).ok_or(Error::MathDomain)?)
+            }
+            fn exp(self) -> Result<Self, Error> {
+                narrow_q61(fm::exp(wide(self)).ok_or(Error::Overflow)?)
+            }
+            #[inline(always)]
+            fn is_finite(self) -> bool {
+                true
+            }
+        }
+
+        impl Narrow for $t {
+            fn narrow(bits: i128) -> Result<Self, Error> {
+                if bits > <$inner>::MAX as i128 || bits < <$inner>::MIN as i128 {
+                    Err(Error::Overflow)
+                } else {
+                    Ok(<$t>::from_bits(bits as $inner))
+                }
+            }
+            fn narrow_q61(v: i128) -> Result<Self, Error> {
+                fm::from_q61(v, $frac, $total)
+                    .map(|b| <$t>::from_bits(b as $inner))
+                    .ok_or(Error::Overflow)
+            }
+            fn wide(self) -> i128 {
+                fm::to_q61(self.to_bits() as i64, $frac)
+            }
+        }
+    };
+}
+
+/// Conversions between a fixed type's raw bits and the wide working formats.
+trait Narrow: Sized {
+    /// Raw bits (already in the type's scale) to the type, checked.
+    fn narrow(bits: i128) -> Result<Self, Error>;
+    /// Q61 to the type, rounded and checked.
+    fn narrow_q61(v: i128) -> Result<Self, Error>;
+    /// The value in Q61.
+    fn wide(self) -> i128;
+}
+
+fn narrow<T: Narrow>(bits: i128) -> Result<T, Error> {
+    T::narrow(bits)
+}
+fn narrow_q61<T: Narrow>(v: i128) -> Result<T, Error> {
+    T::narrow_q61(v)
+}
+fn wide<T: Narrow>(x: T) -> i128 {
+    x.wide()
+}
+
+const _: () = assert!(
+    Q >= 32,
+    "the working format must hold every supported format"
+);
+
+fixed_scalar!(I32F32, i64, 64, 32);
+fixed_scalar!(I8F24, i32, 32, 24);

@@ -1,0 +1,66 @@
+//! Accuracy of every routine in every number type, against an independent `f64`
+//! reference. Asserts each routine's budget and keeps `docs/accuracy.md` in step.
+//!
+//! Regenerate the published table with
+//! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
+
+mod harness;
+mod refraction;
+mod scalar;
+
+use harness::{Row, row};
+
+fn all_rows() -> Vec<Row> {
+    vec![
+        row::<scalar::Sqrt>(),
+        row::<scalar::SinCos>(),
+        row::<scalar::Asin>(),
+        row::<scalar::Atan2>(),
+        row::<scalar::Ln>(),
+        row::<scalar::Exp>(),
+        row::<refraction::CriticalSine>(),
+        row::<refraction::CriticalAngle>(),
+        row::<refraction::IndexFromCriticalAngle>(),
+        row::<refraction::RefractionAngle>(),
+        row::<refraction::FresnelUnpolarised>(),
+    ]
+}
+
+const HEADER: &str = "\
+Maximum absolute error of each routine over its working domain, per number type,
+against an independent `f64` reference computed with plain `libm` calls from the
+closed-form relation (the f64 column therefore shows the routine's own rounding in
+`f64`). Each input is first rounded to the type under test and the reference is
+taken at that rounded input, so the figures are the routine's error, not the
+quantisation of its inputs (I8F24 resolves 6.0e-8, I32F32 2.3e-10).
+
+Produced by `tests/accuracy/main.rs`; regenerate with
+`UPDATE_ACCURACY=1 cargo test --test accuracy`. The same test asserts a budget for
+every cell (see the `BUDGET` beside each sweep) and fails if this table is stale.
+
+";
+
+#[test]
+fn accuracy_within_budget_and_table_current() {
+    let rows = all_rows();
+    let violations: Vec<String> = rows.iter().flat_map(|r| r.violations()).collect();
+    let doc = format!(
+        "# Accuracy against f64\n\n{HEADER}{}",
+        harness::table(&rows)
+    );
+    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/docs/accuracy.md");
+    if std::env::var_os("UPDATE_ACCURACY").is_some() {
+        std::fs::write(path, &doc).unwrap();
+    } else {
+        let committed = std::fs::read_to_string(path).unwrap_or_default();
+        assert!(
+            committed == doc,
+            "docs/accuracy.md is stale; regenerate with UPDATE_ACCURACY=1 cargo test --test accuracy\n{doc}"
+        );
+    }
+    assert!(
+        violations.is_empty(),
+        "budget violations:\n{}",
+        violations.join("\n")
+    );
+}
