@@ -32,7 +32,9 @@ extern crate std;
 
 pub mod error;
 pub mod fresnel;
+pub mod medium;
 pub mod refraction;
+pub mod refractometer;
 pub mod scalar;
 
 pub use error::{Error, Quantity};
