@@ -26,9 +26,9 @@ pub trait SampleCompensation<S: Scalar> {
 /// A trade scale read from nD at 20 °C, relative to air.
 pub trait TradeScale<S: Scalar> {
     /// Scale value (in [`TradeScale::unit`]) for `nd20`.
-    fn from_nd20(&self, nd20: S) -> Result<S, Error>;
+    fn value_at(&self, nd20: S) -> Result<S, Error>;
     /// nD at 20 °C for a scale value (for preparing standards).
-    fn to_nd20(&self, value: S) -> Result<S, Error>;
+    fn nd20_at(&self, value: S) -> Result<S, Error>;
     /// Unit, for display (`"%Brix"`, `"g/kg"`, ...).
     fn unit(&self) -> &'static str;
 }
