@@ -21,11 +21,9 @@ macro_rules! fixed_scalar {
             const TWO: Self = <$t>::from_bits(2 << $frac);
             const HALF: Self = <$t>::from_bits(1 << ($frac - 1));
             const PI: Self =
-                <$t>::from_bits(super::literal_bits(core::f64::consts::PI, Self::FORMAT) as $inner);
-            const FRAC_PI_2: Self = <$t>::from_bits(super::literal_bits(
-                core::f64::consts::FRAC_PI_2,
-                Self::FORMAT,
-            ) as $inner);
+                <$t>::from_bits(const_bits(core::f64::consts::PI, Self::FORMAT) as $inner);
+            const FRAC_PI_2: Self =
+                <$t>::from_bits(const_bits(core::f64::consts::FRAC_PI_2, Self::FORMAT) as $inner);
             const RESOLUTION: Self = <$t>::DELTA;
             const MAX: Self = <$t>::MAX;
 
@@ -145,6 +143,14 @@ macro_rules! fixed_scalar {
             }
         }
     };
+}
+
+/// Bits of a constant that fits every supported format (evaluated at compile time).
+const fn const_bits(x: f64, format: Format) -> i64 {
+    match super::literal_bits(x, format) {
+        Some(b) => b,
+        None => panic!("constant does not fit the format"),
+    }
 }
 
 /// Conversions between a fixed type's raw bits and the wide working formats.

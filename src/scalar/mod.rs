@@ -41,19 +41,29 @@ pub enum Format {
 
 /// Raw bit pattern of `x` in `format`: the compile-time half of [`lit!`](crate::lit).
 ///
-/// Panics (a compile error when evaluated in a `const` block, which is the only way
-/// the crate calls it) if `x` is not finite or does not fit the format.
-pub const fn literal_bits(x: f64, format: Format) -> i64 {
+/// `None` if `x` is not finite or does not fit the format; [`lit!`](crate::lit)
+/// turns that into a compile error.
+pub const fn literal_bits(x: f64, format: Format) -> Option<i64> {
     match format {
-        Format::Float32 => (x as f32).to_bits() as i64,
-        Format::Float64 => x.to_bits() as i64,
+        Format::Float32 => {
+            let v = x as f32;
+            if v.is_finite() {
+                Some(v.to_bits() as i64)
+            } else {
+                None
+            }
+        }
+        Format::Float64 => {
+            if x.is_finite() {
+                Some(x.to_bits() as i64)
+            } else {
+                None
+            }
+        }
         Format::Fixed {
             total_bits,
             frac_bits,
-        } => match fixed_math::f64_to_bits(x, frac_bits, total_bits) {
-            Some(b) => b,
-            None => panic!("literal does not fit the fixed-point format"),
-        },
+        } => fixed_math::f64_to_bits(x, frac_bits, total_bits),
     }
 }
 
@@ -65,11 +75,25 @@ pub const fn literal_bits(x: f64, format: Format) -> i64 {
 /// fn twice_pi<S: Scalar>() -> S { lit!(S, 6.283185307179586) }
 /// assert!((twice_pi::<I8F24>().to_f64() - 6.283185307179586).abs() < 1e-7);
 /// ```
+///
+/// A literal outside the format's range does not compile (I8F24 stops at 128):
+///
+/// ```compile_fail
+/// use embedded_optics::{lit, Scalar};
+/// use fixed::types::I8F24;
+/// fn too_big<S: Scalar>() -> S { lit!(S, 1000.0) }
+/// let _ = too_big::<I8F24>();
+/// ```
 #[macro_export]
 macro_rules! lit {
     ($S:ty, $x:expr) => {
         <$S as $crate::Scalar>::from_literal_bits(
-            const { $crate::scalar::literal_bits($x, <$S as $crate::Scalar>::FORMAT) },
+            const {
+                match $crate::scalar::literal_bits($x, <$S as $crate::Scalar>::FORMAT) {
+                    Some(bits) => bits,
+                    None => panic!("literal does not fit the number format"),
+                }
+            },
         )
     };
 }
