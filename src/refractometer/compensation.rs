@@ -243,10 +243,11 @@ impl<S: Scalar> SampleCompensation<S> for LinearCompensation<S> {
             .max_c
             .check_range(Quantity::Temperature, lo, lit!(S, 100.0))?;
         let t = temperature_c.check_range(Quantity::Temperature, lo, hi)?;
-        // ×10⁻⁴ as two ×0.01 steps: 10⁻⁴ itself is coarse in I8F24.
+        // ×10⁻⁴ as two ×0.01 steps (10⁻⁴ itself is coarse in I8F24), the first
+        // before the product so that it stays inside I8F24's ±128.
         let shift = k
-            .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.01))?
+            .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.01))?;
         crate::refraction::check_index(nd.sub(shift)?)
     }
@@ -283,10 +284,11 @@ impl<S: Scalar> PrismTemperature<S> {
             lit!(S, 50.0),
         )?;
         let t = temperature_c.check_range(Quantity::Temperature, lit!(S, -20.0), lit!(S, 70.0))?;
-        // ×10⁻⁶ as two ×10⁻³ steps: 10⁻⁶ itself is coarse in I8F24.
+        // ×10⁻⁶ as two ×10⁻³ steps (10⁻⁶ itself is coarse in I8F24), the first
+        // before the product so that it stays inside I8F24's ±128.
         let shift = k
-            .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.001))?
+            .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.001))?;
         crate::refraction::check_index(n.add(shift)?)
     }
