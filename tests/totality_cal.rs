@@ -77,8 +77,8 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     within(Salinity.nd20_at(a), 1.3329, 1.341);
     within(HoneyWater.value_at(a), 13.0, 25.0);
     within(HoneyWater.nd20_at(a), 1.473, 1.505);
-    within(MustPotentialAlcohol.value_at(a), 4.87, 12.09);
-    within(MustPotentialAlcohol.nd20_at(a), 1.3478, 1.3656);
+    within(MustPotentialAlcohol.value_at(a), 4.87, 18.36);
+    within(MustPotentialAlcohol.nd20_at(a), 1.3478, 1.3812);
     within(USER.value_at(a), -1e-3, 120.001);
     within(USER.nd20_at(a), 1.3329, 1.3501);
     within(USER.table.y_at(a), -1e-3, 120.001);

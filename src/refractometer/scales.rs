@@ -6,7 +6,7 @@
 //! | [`SucroseBrix`] | %Brix | 0–85 | ICUMSA SPS-3 sucrose table (5 %Brix entries, cubic interpolation) |
 //! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
 //! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
-//! | [`MustPotentialAlcohol`] | % vol | 4.88–12.08 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
+//! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
 //! | [`UserScale`] | user's | user's | a [`LinearTable`] of the user's own |
 //!
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
@@ -27,10 +27,12 @@ use crate::scalar::Scalar;
 
 /// ICUMSA sucrose table, nD(20 °C, 589.3 nm, air) × 10⁵ at 0, 5, ..., 85 %Brix.
 ///
-/// 10, 15 and 20 %Brix agree with OIV-MA-AS2-02 Table II as reproduced in the
-/// French arrêté of 14 September 2011, annex IV (1.34782, 1.35568, 1.36384).
-/// The other entries are recalled ICUMSA values (`// from memory`), checked in
-/// `tests/world_cal.rs` against the published polynomial fit to the ICUMSA table.
+/// The 10–30 %Brix entries are those of OIV-MA-AS2-02 Table II as reproduced
+/// in the French arrêté of 14 September 2011, annex IV; the others are recalled
+/// ICUMSA values (`// from memory`), checked in `tests/world_cal.rs` against the
+/// published polynomial fit to the ICUMSA table. Interpolated, the table
+/// reproduces all 201 rows of OIV Table II (10.0–30.0 %, every 0.1 %) within
+/// 0.005 %Brix.
 const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
     x0: 0,
     step: 5,
@@ -154,7 +156,7 @@ impl<S: Scalar> TradeScale<S> for HoneyWater {
 /// OIV-MA-AS2-02 Table II as reproduced in the French arrêté of 14 September
 /// 2011, annex IV: nD(20 °C) × 10⁵ against the estimated alcoholic strength of
 /// the wine after fermentation, % vol × 100 (16.83 g/L sugar per % vol), at
-/// 10–21 % mass sucrose.
+/// 10–30 % mass sucrose, every 1 %.
 const MUST_ALCOHOL_POINTS: &[(i32, i32)] = &[
     (134782, 488),
     (134937, 551),
@@ -168,6 +170,15 @@ const MUST_ALCOHOL_POINTS: &[(i32, i32)] = &[
     (136219, 1073),
     (136384, 1140),
     (136551, 1208),
+    (136720, 1275),
+    (136889, 1344),
+    (137060, 1413),
+    (137233, 1482),
+    (137407, 1552),
+    (137582, 1622),
+    (137758, 1692),
+    (137936, 1764),
+    (138115, 1835),
 ];
 
 const MUST_ALCOHOL: LinearTable = match LinearTable::new(MUST_ALCOHOL_POINTS, 100_000, 100) {
@@ -175,7 +186,7 @@ const MUST_ALCOHOL: LinearTable = match LinearTable::new(MUST_ALCOHOL_POINTS, 10
     Err(_) => panic!("must table is not monotonic"),
 };
 
-/// Potential alcohol of grape must, % vol, 4.88–12.08 % vol (nD 1.34782–1.36551).
+/// Potential alcohol of grape must, % vol, 4.88–18.35 % vol (nD 1.34782–1.38115).
 ///
 /// The wine's estimated alcoholic strength after complete fermentation, from
 /// the must's sugar by OIV-MA-AS2-02 Table II with 16.83 g/L of sugar per % vol.

@@ -142,7 +142,7 @@ impl Case for SalinityFromNd {
 }
 
 /// OIV Table II nodes of the potential-alcohol scale (nD, % vol).
-const MUST: [(f64, f64); 12] = [
+const MUST: [(f64, f64); 21] = [
     (1.34782, 4.88),
     (1.34937, 5.51),
     (1.35093, 6.15),
@@ -155,13 +155,22 @@ const MUST: [(f64, f64); 12] = [
     (1.36219, 10.73),
     (1.36384, 11.40),
     (1.36551, 12.08),
+    (1.36720, 12.75),
+    (1.36889, 13.44),
+    (1.37060, 14.13),
+    (1.37233, 14.82),
+    (1.37407, 15.52),
+    (1.37582, 16.22),
+    (1.37758, 16.92),
+    (1.37936, 17.64),
+    (1.38115, 18.35),
 ];
 
 pub struct MustAlcoholFromNd;
 impl Case for MustAlcoholFromNd {
     const NAME: &'static str = "scales::MustPotentialAlcohol::value_at";
     const UNIT: &'static str = "% vol";
-    const DOMAIN: &'static str = "nD 1.34783–1.36550";
+    const DOMAIN: &'static str = "nD 1.34783–1.38114";
     const BUDGET: Budget = Budget {
         f64: 1.0e-13,
         f32: 5.0e-5,
@@ -169,7 +178,7 @@ impl Case for MustAlcoholFromNd {
         i8f24: 5.0e-5,
     };
     fn inputs() -> Vec<Vec<f64>> {
-        span(1.34783, 1.36550, 709).map(|x| vec![x]).collect()
+        span(1.34783, 1.38114, 1001).map(|x| vec![x]).collect()
     }
     fn reference(x: &[f64]) -> Option<f64> {
         MUST.windows(2).find_map(|w| {
