@@ -213,6 +213,7 @@ proptest! {
             c_ten_millionths: I32F32::from_num(0.876741),
         };
         within(d.temperature_c(&sh, code), -55.0, 125.0);
+        let _ = d.resistance_ohms(code);
         within(ln_integer::<I8F24>(r), 0.0, 21.5);
         within(ln_integer::<f32>(code), 0.0, 21.5);
     }

@@ -265,6 +265,9 @@ fn divider_both_placements_and_faults() {
     // High side: R = 10k·(4096 − code)/code; code 1024 → 30 kΩ.
     let h: f64 = high.ln_resistance(1024).unwrap();
     assert!((h - 30_000.0f64.ln()).abs() < 1e-12);
+    assert_eq!(low.resistance_ohms(1024), Ok(3333));
+    assert_eq!(high.resistance_ohms(1024), Ok(30_000));
+    assert_eq!(high.resistance_ohms(0), Err(Error::SensorOpen));
     // Mid-scale is R = R_ref in both placements: 25 °C for the β part.
     for d in [low, high] {
         let t: I8F24 = d.temperature_c(&beta3950::<I8F24>(), 2048).unwrap();

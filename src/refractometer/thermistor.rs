@@ -74,14 +74,9 @@ pub struct Divider {
 }
 
 impl Divider {
-    /// `ln(R_thermistor / 1 Ω)` from an ADC code.
-    ///
-    /// With full scale `F = 2^adc_bits`: high side `R = R_ref·(F − code)/code`,
-    /// low side `R = R_ref·code/(F − code)`. A code at the rail an open sensor
-    /// drives to is [`Error::SensorOpen`], the other rail
-    /// [`Error::SensorShorted`]; a code beyond full scale or a bad bit depth is
-    /// [`Error::OutOfRange`].
-    pub fn ln_resistance<S: Scalar>(&self, code: u32) -> Result<S, Error> {
+    /// Checks the configuration and the code and returns the resistance ratio
+    /// `R_thermistor / R_ref` as `(numerator, denominator)` in ADC codes.
+    fn ratio_codes(&self, code: u32) -> Result<(u32, u32), Error> {
         if self.adc_bits == 0 || self.adc_bits > 24 {
             return Err(Error::OutOfRange(Quantity::AdcCode));
         }
@@ -104,10 +99,32 @@ impl Divider {
         if high_rail {
             return Err(high_fault);
         }
-        let (num, den) = match self.placement {
+        Ok(match self.placement {
             Placement::ThermistorHighSide => (full - code, code),
             Placement::ThermistorLowSide => (code, full - code),
-        };
+        })
+    }
+
+    /// The thermistor's resistance in whole ohms (rounded), integer arithmetic
+    /// only: for logging and for service menus. Faults as in
+    /// [`Divider::ln_resistance`]; a resistance above `u32::MAX` Ω is
+    /// [`Error::Overflow`].
+    pub fn resistance_ohms(&self, code: u32) -> Result<u32, Error> {
+        let (num, den) = self.ratio_codes(code)?;
+        let r =
+            (u64::from(self.reference_ohms) * u64::from(num) + u64::from(den) / 2) / u64::from(den);
+        u32::try_from(r).map_err(|_| Error::Overflow)
+    }
+
+    /// `ln(R_thermistor / 1 Ω)` from an ADC code.
+    ///
+    /// With full scale `F = 2^adc_bits`: high side `R = R_ref·(F − code)/code`,
+    /// low side `R = R_ref·code/(F − code)`. A code at the rail an open sensor
+    /// drives to is [`Error::SensorOpen`], the other rail
+    /// [`Error::SensorShorted`]; a code beyond full scale or a bad bit depth is
+    /// [`Error::OutOfRange`].
+    pub fn ln_resistance<S: Scalar>(&self, code: u32) -> Result<S, Error> {
+        let (num, den) = self.ratio_codes(code)?;
         ln_integer::<S>(self.reference_ohms)?
             .add(ln_integer::<S>(num)?)?
             .sub(ln_integer::<S>(den)?)
