@@ -25,6 +25,14 @@ pub enum Quantity {
     Wavelength,
     /// A temperature.
     Temperature,
+    /// An electrical resistance (thermistor, divider resistor).
+    Resistance,
+    /// A raw analogue-to-digital converter reading or its bit depth.
+    AdcCode,
+    /// A trade-scale value (%Brix, g/kg, % water, ...).
+    ScaleValue,
+    /// A temperature coefficient (dn/dT).
+    TemperatureCoefficient,
 }
 
 impl fmt::Display for Quantity {
@@ -37,6 +45,10 @@ impl fmt::Display for Quantity {
             Quantity::Cosine => "cosine",
             Quantity::Wavelength => "wavelength",
             Quantity::Temperature => "temperature",
+            Quantity::Resistance => "resistance",
+            Quantity::AdcCode => "ADC code",
+            Quantity::ScaleValue => "scale value",
+            Quantity::TemperatureCoefficient => "temperature coefficient",
         })
     }
 }
@@ -62,6 +74,21 @@ pub enum Error {
     /// The sample's index is at or above the prism's: there is no critical angle,
     /// so a critical-angle instrument cannot measure it.
     IndexAtOrAbovePrism,
+    /// The temperature sensor reads as an open circuit (broken lead or missing
+    /// part): its ADC code sits at the rail an open sensor drives it to.
+    SensorOpen,
+    /// The temperature sensor reads as a short circuit: its ADC code sits at the
+    /// rail a shorted sensor drives it to.
+    SensorShorted,
+    /// A stored record is shorter than its format requires.
+    RecordTruncated,
+    /// A stored record does not carry this crate's magic: erased flash or
+    /// another program's data.
+    RecordForeign,
+    /// A stored record fails its checksum (torn write, flipped bit).
+    RecordCorrupt,
+    /// A stored record was written by a newer (or unknown) format version.
+    RecordVersionUnsupported,
 }
 
 impl fmt::Display for Error {
@@ -78,6 +105,14 @@ impl fmt::Display for Error {
             Error::IndexAtOrAbovePrism => f.write_str(
                 "sample index at or above the prism index: no critical angle, out of range",
             ),
+            Error::SensorOpen => f.write_str("temperature sensor open circuit"),
+            Error::SensorShorted => f.write_str("temperature sensor short circuit"),
+            Error::RecordTruncated => f.write_str("stored record is truncated"),
+            Error::RecordForeign => f.write_str("stored record has a foreign magic"),
+            Error::RecordCorrupt => f.write_str("stored record fails its checksum"),
+            Error::RecordVersionUnsupported => {
+                f.write_str("stored record has an unsupported format version")
+            }
         }
     }
 }

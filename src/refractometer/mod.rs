@@ -32,3 +32,9 @@ pub trait TradeScale<S: Scalar> {
     /// Unit, for display (`"%Brix"`, `"g/kg"`, ...).
     fn unit(&self) -> &'static str;
 }
+
+pub mod compensation;
+pub mod record;
+pub mod scales;
+pub mod table;
+pub mod thermistor;

@@ -4,6 +4,7 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+mod cal;
 mod harness;
 mod refraction;
 mod scalar;
@@ -23,6 +24,17 @@ fn all_rows() -> Vec<Row> {
         row::<refraction::IndexFromCriticalAngle>(),
         row::<refraction::RefractionAngle>(),
         row::<refraction::FresnelUnpolarised>(),
+        row::<cal::BrixFromNd>(),
+        row::<cal::NdFromBrix>(),
+        row::<cal::HoneyWaterFromNd>(),
+        row::<cal::SalinityFromNd>(),
+        row::<cal::MustAlcoholFromNd>(),
+        row::<cal::SucroseCorrection>(),
+        row::<cal::LinearSampleCompensation>(),
+        row::<cal::PrismIndex>(),
+        row::<cal::ThermistorSteinhartHart>(),
+        row::<cal::ThermistorBeta>(),
+        row::<cal::RecordCorrection>(),
     ]
 }
 

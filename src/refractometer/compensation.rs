@@ -1,0 +1,295 @@
+//! Sample and prism temperature compensation (ATC) to the 20 °C of the trade
+//! tables.
+//!
+//! - [`SucroseCompensation`]: the published correction table for sucrose
+//!   (%Brix to add, by temperature and sugar content).
+//! - [`WaterCompensation`]: water's own index change, from any [`Medium`]
+//!   (for example an IAPWS R9-97 water model).
+//! - [`LinearCompensation`]: a user's dn/dT for other samples.
+//! - [`PrismTemperature`]: the measuring prism's index at its temperature.
+//!
+//! Outside a model's compensation range the result is
+//! [`Error::OutOfRange`] with [`Quantity::Temperature`] (or
+//! [`Quantity::ScaleValue`] for a sugar content outside the table): a firmware
+//! shows the reading as uncompensated, it never gets an extrapolated one.
+
+use super::SampleCompensation;
+use super::TradeScale;
+use super::scales::SucroseBrix;
+use crate::error::{Error, Quantity};
+use crate::lit;
+use crate::medium::Medium;
+use crate::scalar::Scalar;
+
+/// The trade tables' reference temperature, °C.
+pub const REFERENCE_C: f64 = 20.0;
+
+/// A sucrose temperature-correction table: rows by temperature (°C, rising),
+/// columns by %Brix read at that temperature (rising), entries in 0.01 %Brix to
+/// add to the reading to get %Brix at 20 °C. Read by bilinear interpolation.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SucroseCorrectionTable {
+    /// Row temperatures, °C.
+    pub temperatures_c: &'static [i32],
+    /// Column sugar contents, %Brix.
+    pub brix: &'static [i32],
+    /// One row per temperature, one entry per column, 0.01 %Brix.
+    pub corrections: &'static [&'static [i16]],
+}
+
+/// OIV-MA-AS2-02 Table I (correction when the mass percentage of sucrose was
+/// read at a temperature other than 20 °C), the rows for 10–17 °C, columns
+/// 10–70 %, plus the 20 °C row (zero by definition).
+///
+/// The rows for 18–19 °C and 21–30 °C of the same table were not available
+/// when this was written: above 17 °C the correction is interpolated to zero at
+/// 20 °C, and above 20 °C [`SucroseCompensation::oiv`] reports
+/// [`Error::OutOfRange`]. A firmware that needs 20–30 °C supplies the full
+/// table through [`SucroseCompensation::new`].
+pub const OIV_TABLE_I_10_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable {
+    temperatures_c: &[10, 11, 12, 13, 14, 15, 16, 17, 20],
+    brix: &[10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70],
+    corrections: &[
+        &[
+            -59, -62, -65, -67, -69, -71, -72, -73, -74, -75, -75, -75, -75,
+        ],
+        &[
+            -54, -57, -59, -61, -63, -64, -65, -66, -67, -68, -68, -68, -68,
+        ],
+        &[
+            -49, -51, -53, -55, -56, -57, -58, -59, -60, -60, -61, -61, -60,
+        ],
+        &[
+            -43, -45, -47, -48, -50, -51, -52, -52, -53, -53, -53, -53, -53,
+        ],
+        &[
+            -38, -39, -40, -42, -43, -44, -44, -45, -45, -46, -46, -46, -46,
+        ],
+        &[
+            -32, -33, -34, -35, -36, -37, -37, -38, -38, -38, -38, -38, -38,
+        ],
+        &[
+            -26, -27, -28, -28, -29, -30, -30, -30, -31, -31, -31, -31, -31,
+        ],
+        &[
+            -20, -20, -21, -21, -22, -22, -23, -23, -23, -23, -23, -23, -23,
+        ],
+        &[0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0],
+    ],
+};
+
+/// Index `i` such that `axis[i] <= v <= axis[i+1]` and the fraction of the way,
+/// or `None` outside.
+fn bracket<S: Scalar>(axis: &[i32], v: S) -> Result<Option<(usize, S)>, Error> {
+    for i in 0..axis.len().saturating_sub(1) {
+        let (Some(&a), Some(&b)) = (axis.get(i), axis.get(i + 1)) else {
+            continue;
+        };
+        let (sa, sb) = (S::from_i32(a)?, S::from_i32(b)?);
+        if v >= sa && v <= sb && b > a {
+            let f = v.sub(sa)?.div(S::from_i32(b - a)?)?;
+            return Ok(Some((i, f)));
+        }
+    }
+    Ok(None)
+}
+
+impl SucroseCorrectionTable {
+    fn entry<S: Scalar>(&self, row: usize, col: usize) -> Result<S, Error> {
+        let c = self
+            .corrections
+            .get(row)
+            .and_then(|r| r.get(col))
+            .copied()
+            .ok_or(Error::OutOfRange(Quantity::Value))?;
+        S::from_ratio(i32::from(c), 100)
+    }
+
+    /// %Brix to add to a reading of `brix` taken at `temperature_c`.
+    pub fn correction<S: Scalar>(&self, temperature_c: S, brix: S) -> Result<S, Error> {
+        if !temperature_c.is_finite() {
+            return Err(Error::NotFinite(Quantity::Temperature));
+        }
+        if !brix.is_finite() {
+            return Err(Error::NotFinite(Quantity::ScaleValue));
+        }
+        let (r, fr) = bracket(self.temperatures_c, temperature_c)?
+            .ok_or(Error::OutOfRange(Quantity::Temperature))?;
+        // A reading that rounds a hair outside the first or last column (the
+        // %Brix came through the ICUMSA table) is taken at that column.
+        let edge = lit!(S, 0.005);
+        let brix = match (self.brix.first(), self.brix.last()) {
+            (Some(&lo), Some(&hi)) => {
+                let (lo, hi) = (S::from_i32(lo)?, S::from_i32(hi)?);
+                if brix < lo && brix >= lo.sub(edge)? {
+                    lo
+                } else if brix > hi && brix <= hi.add(edge)? {
+                    hi
+                } else {
+                    brix
+                }
+            }
+            _ => brix,
+        };
+        let (c, fc) = bracket(self.brix, brix)?.ok_or(Error::OutOfRange(Quantity::ScaleValue))?;
+        let lerp = |a: S, b: S, f: S| -> Result<S, Error> { a.add(b.sub(a)?.mul(f)?) };
+        let top = lerp(self.entry(r, c)?, self.entry(r, c + 1)?, fc)?;
+        let bottom = lerp(self.entry(r + 1, c)?, self.entry(r + 1, c + 1)?, fc)?;
+        lerp(top, bottom, fr)
+    }
+}
+
+/// Sucrose (and %Brix-read juices) compensation by a published correction
+/// table: the reading at temperature is taken as %Brix on the ICUMSA scale,
+/// corrected by the table, and turned back to nD at 20 °C.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SucroseCompensation {
+    table: SucroseCorrectionTable,
+}
+
+impl SucroseCompensation {
+    /// Compensation by OIV-MA-AS2-02 Table I, 10–20 °C and 10–70 %Brix (see
+    /// [`OIV_TABLE_I_10_TO_20_C`]).
+    pub const fn oiv() -> Self {
+        Self {
+            table: OIV_TABLE_I_10_TO_20_C,
+        }
+    }
+
+    /// Compensation by a correction table of the caller's (a fuller edition of
+    /// the OIV or ICUMSA table).
+    pub const fn new(table: SucroseCorrectionTable) -> Self {
+        Self { table }
+    }
+
+    /// %Brix at 20 °C from %Brix read at `temperature_c`.
+    ///
+    /// ```
+    /// use embedded_optics::refractometer::compensation::SucroseCompensation;
+    /// // 15.0 %Brix read at 15 °C: OIV Table I says subtract 0.33.
+    /// let b: f64 = SucroseCompensation::oiv().brix_at_reference(15.0, 15.0).unwrap();
+    /// assert!((b - 14.67).abs() < 1e-9);
+    /// ```
+    pub fn brix_at_reference<S: Scalar>(&self, brix: S, temperature_c: S) -> Result<S, Error> {
+        brix.add(self.table.correction(temperature_c, brix)?)
+    }
+}
+
+impl<S: Scalar> SampleCompensation<S> for SucroseCompensation {
+    fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
+        let brix_read = SucroseBrix.value_at(nd)?;
+        let brix20 = self.brix_at_reference(brix_read, temperature_c)?;
+        SucroseBrix.nd20_at(brix20)
+    }
+}
+
+/// Water and dilute aqueous samples: adds water's own index change between the
+/// sample temperature and 20 °C, from a water [`Medium`] at 589.3 nm.
+///
+/// `nD20 = nD(T) + n_w(20 °C) − n_w(T)`. The medium's own validity range
+/// applies, and this compensation's range is 0–60 °C. [`Medium`] takes the
+/// wavelength in nm, which I8F24 (range ±128) cannot hold: with I8F24 this
+/// returns [`Error::Overflow`]; use I32F32 or a float.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct WaterCompensation<M> {
+    /// The water model (for example IAPWS R9-97).
+    pub water: M,
+}
+
+impl<S: Scalar, M: Medium<S>> SampleCompensation<S> for WaterCompensation<M> {
+    fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
+        let nd = crate::refraction::check_index(nd)?;
+        let t = temperature_c.check_range(Quantity::Temperature, S::ZERO, lit!(S, 60.0))?;
+        // 589.3 nm does not fit I8F24 (range ±128): there the conversion is
+        // Error::Overflow, since `Medium` takes the wavelength in nm.
+        let sodium_d = S::from_ratio(5893, 10)?;
+        let n20 = self.water.index(sodium_d, lit!(S, REFERENCE_C))?;
+        let nt = self.water.index(sodium_d, t)?;
+        crate::refraction::check_index(nd.add(n20.sub(nt)?)?)
+    }
+}
+
+/// A user's linear temperature coefficient: `nD20 = nD(T) − dn/dT·(T − 20)`,
+/// within the user's stated range.
+///
+/// `dn_dt_e4` is dn/dT in units of 10⁻⁴ per K (liquids: about −1 to −5), kept
+/// scaled so I8F24 holds its digits.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct LinearCompensation<S> {
+    /// dn/dT × 10⁴, per K (−50 to 50).
+    pub dn_dt_e4: S,
+    /// Lowest temperature the coefficient holds for, °C.
+    pub min_c: S,
+    /// Highest temperature the coefficient holds for, °C.
+    pub max_c: S,
+}
+
+impl<S: Scalar> SampleCompensation<S> for LinearCompensation<S> {
+    fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
+        let nd = crate::refraction::check_index(nd)?;
+        let k = self.dn_dt_e4.check_range(
+            Quantity::TemperatureCoefficient,
+            lit!(S, -50.0),
+            lit!(S, 50.0),
+        )?;
+        let lo = self
+            .min_c
+            .check_range(Quantity::Temperature, lit!(S, -20.0), lit!(S, 100.0))?;
+        let hi = self
+            .max_c
+            .check_range(Quantity::Temperature, lo, lit!(S, 100.0))?;
+        let t = temperature_c.check_range(Quantity::Temperature, lo, hi)?;
+        // ×10⁻⁴ as two ×0.01 steps (10⁻⁴ itself is coarse in I8F24), the first
+        // before the product so that it stays inside I8F24's ±128.
+        let shift = k
+            .mul(lit!(S, 0.01))?
+            .mul(t.sub(lit!(S, REFERENCE_C))?)?
+            .mul(lit!(S, 0.01))?;
+        crate::refraction::check_index(nd.sub(shift)?)
+    }
+}
+
+/// The measuring prism's index at its temperature, from its index at 20 °C and
+/// a linear dn/dT (glass data sheets give dn/dT per K near room temperature).
+///
+/// `dn_dt_e6` is dn/dT in units of 10⁻⁶ per K (optical glasses: about −10 to
+/// +15). Range −20 to 70 °C.
+///
+/// ```
+/// use embedded_optics::refractometer::compensation::PrismTemperature;
+/// let prism = PrismTemperature { nd20: 1.72f64, dn_dt_e6: 4.0 };
+/// let n = prism.index_at(30.0).unwrap();
+/// assert!((n - (1.72 + 4.0e-6 * 10.0)).abs() < 1e-12);
+/// ```
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct PrismTemperature<S> {
+    /// Prism nD at 20 °C.
+    pub nd20: S,
+    /// dn/dT × 10⁶, per K (−50 to 50).
+    pub dn_dt_e6: S,
+}
+
+impl<S: Scalar> PrismTemperature<S> {
+    /// Prism nD at `temperature_c`.
+    pub fn index_at(&self, temperature_c: S) -> Result<S, Error> {
+        let n = crate::refraction::check_index(self.nd20)?;
+        let k = self.dn_dt_e6.check_range(
+            Quantity::TemperatureCoefficient,
+            lit!(S, -50.0),
+            lit!(S, 50.0),
+        )?;
+        let t = temperature_c.check_range(Quantity::Temperature, lit!(S, -20.0), lit!(S, 70.0))?;
+        // ×10⁻⁶ as two ×10⁻³ steps (10⁻⁶ itself is coarse in I8F24), the first
+        // before the product so that it stays inside I8F24's ±128.
+        let shift = k
+            .mul(lit!(S, 0.001))?
+            .mul(t.sub(lit!(S, REFERENCE_C))?)?
+            .mul(lit!(S, 0.001))?;
+        crate::refraction::check_index(n.add(shift)?)
+    }
+}

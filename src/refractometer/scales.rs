@@ -1,0 +1,251 @@
+//! Trade scales read from nD at 20 °C (589.3 nm, relative to air), each with
+//! its range and source, and a user scale from a table built in a `const`.
+//!
+//! | scale | unit | range | source |
+//! |---|---|---|---|
+//! | [`SucroseBrix`] | %Brix | 0–85 | ICUMSA SPS-3 sucrose table (5 %Brix entries, cubic interpolation) |
+//! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
+//! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
+//! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
+//! | [`UserScale`] | user's | user's | a [`LinearTable`] of the user's own |
+//!
+//! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
+//! extrapolated beyond the published table.
+//!
+//! ```
+//! use embedded_optics::refractometer::{TradeScale, scales::SucroseBrix};
+//! use fixed::types::I8F24;
+//! let brix = SucroseBrix.value_at(I8F24::from_num(1.34782)).unwrap();
+//! assert!((brix.to_num::<f64>() - 10.0).abs() < 0.005);
+//! ```
+
+use super::TradeScale;
+use super::table::{LinearTable, UniformCubicTable};
+use crate::error::{Error, Quantity};
+use crate::lit;
+use crate::scalar::Scalar;
+
+/// ICUMSA sucrose table, nD(20 °C, 589.3 nm, air) × 10⁵ at 0, 5, ..., 85 %Brix.
+///
+/// The 10–30 %Brix entries are those of OIV-MA-AS2-02 Table II as reproduced
+/// in the French arrêté of 14 September 2011, annex IV; the others are recalled
+/// ICUMSA values (`// from memory`), checked in `tests/world_cal.rs` against the
+/// published polynomial fit to the ICUMSA table. Interpolated, the table
+/// reproduces all 201 rows of OIV Table II (10.0–30.0 %, every 0.1 %) within
+/// 0.005 %Brix.
+const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
+    x0: 0,
+    step: 5,
+    x_den: 1,
+    ys: &[
+        133299, 134026, 134782, 135568, 136384, 137233, 138115, 139032, 139986, 140978, 142009,
+        143080, 144193, 145348, 146546, 147787, 149071, 150398,
+    ],
+    y_den: 100_000,
+};
+
+/// %Brix of sucrose solutions (ICUMSA SPS-3), 0–85 %Brix.
+///
+/// The trade definition of %Brix for refractometers: g sucrose per 100 g of
+/// solution whose nD at 20 °C matches the sample's. For other sugars it is an
+/// approximation of dry substance.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SucroseBrix;
+
+impl<S: Scalar> TradeScale<S> for SucroseBrix {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        ICUMSA_SUCROSE.x_at(nd20, Quantity::RefractiveIndex)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        ICUMSA_SUCROSE.y_at(value, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "%Brix"
+    }
+}
+
+/// Salinity of seawater, ‰ (practical salinity, ≈ g/kg), 0–43 ‰.
+///
+/// Quan & Fry 1995 (Appl. Opt. 34, 3477) fit to the Austin & Halikas seawater
+/// data, taken at 20 °C and 589.3 nm, is linear in salinity there:
+/// `nD = 1.3330044 + 1.828995e-4 · S` (coefficients `// from memory`). Brines
+/// other than seawater (salted pickles, aquarium mixes) read approximately.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Salinity;
+
+/// nD of zero-salinity water in the Quan & Fry relation at 20 °C, 589.3 nm.
+const SALINITY_N0: f64 = 1.333_004_434;
+/// dnD/dS, per ‰, of the same relation.
+const SALINITY_SLOPE_PER_MILLE: f64 = 1.828_995_2e-4;
+/// Highest salinity of the data behind the relation.
+const SALINITY_MAX: f64 = 43.0;
+
+impl<S: Scalar> TradeScale<S> for Salinity {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        let hi = lit!(S, SALINITY_N0 + SALINITY_SLOPE_PER_MILLE * SALINITY_MAX);
+        let n = nd20.check_range(Quantity::RefractiveIndex, lit!(S, SALINITY_N0), hi)?;
+        // (n - n0) · 100 · 100 / (slope · 10⁴) keeps I8F24 digits (10⁴ itself
+        // does not fit I8F24).
+        n.sub(lit!(S, SALINITY_N0))?
+            .mul(lit!(S, 100.0))?
+            .mul(lit!(S, 100.0))?
+            .div(lit!(S, SALINITY_SLOPE_PER_MILLE * 10_000.0))
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        let s = value.check_range(Quantity::ScaleValue, S::ZERO, lit!(S, SALINITY_MAX))?;
+        s.mul(lit!(S, SALINITY_SLOPE_PER_MILLE * 10_000.0))?
+            .mul(lit!(S, 0.01))?
+            .mul(lit!(S, 0.01))?
+            .add(lit!(S, SALINITY_N0))
+    }
+    fn unit(&self) -> &'static str {
+        "‰"
+    }
+}
+
+/// Water content of honey, g/100 g, 13–25 %.
+///
+/// Wedmore's relation behind the Chataway table, as given in the Harmonised
+/// Methods of the International Honey Commission (method 1, refractometric
+/// moisture): `W = (−0.2681 − log10(nD − 1)) / 0.002243` (`// from memory`).
+/// Crystallised honey must be liquefied first; the table is for nD at 20 °C.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct HoneyWater;
+
+const HONEY_A: f64 = -0.2681;
+const HONEY_B: f64 = 0.002243;
+const HONEY_W_MIN: f64 = 13.0;
+const HONEY_W_MAX: f64 = 25.0;
+
+/// nD of honey at water content `w` (not range-checked).
+fn honey_nd<S: Scalar>(w: S) -> Result<S, Error> {
+    // nD − 1 = 10^(A − B·W) = e^(ln10·(A − B·W))
+    let e = lit!(S, HONEY_A).sub(lit!(S, HONEY_B).mul(w)?)?;
+    e.mul(lit!(S, core::f64::consts::LN_10))?.exp()?.add(S::ONE)
+}
+
+impl<S: Scalar> TradeScale<S> for HoneyWater {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        // The range in nD, from the range in W (nD falls as W rises).
+        let lo = honey_nd(lit!(S, HONEY_W_MAX))?;
+        let hi = honey_nd(lit!(S, HONEY_W_MIN))?;
+        let n = nd20.check_range(Quantity::RefractiveIndex, lo, hi)?;
+        let log10 = n
+            .sub(S::ONE)?
+            .ln()?
+            .mul(lit!(S, core::f64::consts::LOG10_E))?;
+        let w = lit!(S, HONEY_A).sub(log10)?.div(lit!(S, HONEY_B))?;
+        Ok(w.max(lit!(S, HONEY_W_MIN)).min(lit!(S, HONEY_W_MAX)))
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        let w = value.check_range(
+            Quantity::ScaleValue,
+            lit!(S, HONEY_W_MIN),
+            lit!(S, HONEY_W_MAX),
+        )?;
+        honey_nd(w)
+    }
+    fn unit(&self) -> &'static str {
+        "% water"
+    }
+}
+
+/// OIV-MA-AS2-02 Table II as reproduced in the French arrêté of 14 September
+/// 2011, annex IV: nD(20 °C) × 10⁵ against the estimated alcoholic strength of
+/// the wine after fermentation, % vol × 100 (16.83 g/L sugar per % vol), at
+/// 10–30 % mass sucrose, every 1 %.
+const MUST_ALCOHOL_POINTS: &[(i32, i32)] = &[
+    (134782, 488),
+    (134937, 551),
+    (135093, 615),
+    (135250, 679),
+    (135408, 744),
+    (135568, 808),
+    (135729, 874),
+    (135891, 940),
+    (136054, 1006),
+    (136219, 1073),
+    (136384, 1140),
+    (136551, 1208),
+    (136720, 1275),
+    (136889, 1344),
+    (137060, 1413),
+    (137233, 1482),
+    (137407, 1552),
+    (137582, 1622),
+    (137758, 1692),
+    (137936, 1764),
+    (138115, 1835),
+];
+
+const MUST_ALCOHOL: LinearTable = match LinearTable::new(MUST_ALCOHOL_POINTS, 100_000, 100) {
+    Ok(t) => t,
+    Err(_) => panic!("must table is not monotonic"),
+};
+
+/// Potential alcohol of grape must, % vol, 4.88–18.35 % vol (nD 1.34782–1.38115).
+///
+/// The wine's estimated alcoholic strength after complete fermentation, from
+/// the must's sugar by OIV-MA-AS2-02 Table II with 16.83 g/L of sugar per % vol.
+/// An estimate for winemaking decisions, not a measured strength.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct MustPotentialAlcohol;
+
+impl<S: Scalar> TradeScale<S> for MustPotentialAlcohol {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        MUST_ALCOHOL.y_at_for(nd20, Quantity::RefractiveIndex)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        MUST_ALCOHOL.x_at_for(value, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "% vol"
+    }
+}
+
+/// A scale of the user's own: a piecewise-linear [`LinearTable`] from nD at
+/// 20 °C (`x`) to the scale value (`y`), and its unit.
+///
+/// For clinical or hazardous-liquid scales (urine or serum specific gravity,
+/// glycol coolant freeze point, battery acid), the table must come from the
+/// fluid's maker or the applicable standard and be validated on the instrument;
+/// a refractometer reading does not replace the laboratory method, and local
+/// codes and licensed practice govern its use.
+///
+/// ```
+/// use embedded_optics::refractometer::{TradeScale, scales::UserScale, table::LinearTable};
+/// // Our aquarium shop's invented demo scale: nD 1.3330 -> 0 "units", 1.3400 -> 70.
+/// const SHOP: UserScale = UserScale {
+///     table: match LinearTable::new(&[(13330, 0), (13400, 700)], 10_000, 10) {
+///         Ok(t) => t,
+///         Err(_) => panic!("bad table"),
+///     },
+///     unit: "units",
+/// };
+/// let v: f32 = SHOP.value_at(1.3365).unwrap();
+/// assert!((v - 35.0).abs() < 0.01); // f32 resolves nD to about 1e-7
+/// ```
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct UserScale {
+    /// nD(20 °C) → value.
+    pub table: LinearTable,
+    /// Unit, for display.
+    pub unit: &'static str,
+}
+
+impl<S: Scalar> TradeScale<S> for UserScale {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        self.table.y_at_for(nd20, Quantity::RefractiveIndex)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        self.table.x_at_for(value, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        self.unit
+    }
+}

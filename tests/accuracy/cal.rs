@@ -1,0 +1,430 @@
+//! Sweeps of the refractometer's calibration, thermistor, compensation and
+//! scale routines. References are written here again in plain `f64` (table
+//! interpolation by Lagrange's formula, inverse by bisection; closed forms for
+//! the rest), sharing no code with the routines.
+
+use crate::harness::{Budget, Case, span};
+use embedded_optics::refractometer::compensation::{
+    LinearCompensation, PrismTemperature, SucroseCompensation,
+};
+use embedded_optics::refractometer::record::CalibrationRecord;
+use embedded_optics::refractometer::scales::{
+    HoneyWater, MustPotentialAlcohol, Salinity, SucroseBrix,
+};
+use embedded_optics::refractometer::thermistor::{Beta, SteinhartHart, ThermistorModel};
+use embedded_optics::refractometer::{SampleCompensation, TradeScale};
+use embedded_optics::{Error, Scalar};
+use fixed::types::I32F32;
+
+/// ICUMSA entries the scale stores, nD at 0, 5, ..., 85 %Brix.
+const ICUMSA: [f64; 18] = [
+    1.33299, 1.34026, 1.34782, 1.35568, 1.36384, 1.37233, 1.38115, 1.39032, 1.39986, 1.40978,
+    1.42009, 1.43080, 1.44193, 1.45348, 1.46546, 1.47787, 1.49071, 1.50398,
+];
+
+fn icumsa_nd(brix: f64) -> f64 {
+    let u = brix / 5.0;
+    let k = (u.floor() as usize).min(16);
+    let k0 = k.saturating_sub(1).min(14);
+    let xs = [k0 as f64, k0 as f64 + 1.0, k0 as f64 + 2.0, k0 as f64 + 3.0];
+    let mut y = 0.0;
+    for i in 0..4 {
+        let mut w = 1.0;
+        for j in 0..4 {
+            if i != j {
+                w *= (u - xs[j]) / (xs[i] - xs[j]);
+            }
+        }
+        y += w * ICUMSA[k0 + i];
+    }
+    y
+}
+
+fn icumsa_brix(nd: f64) -> f64 {
+    let (mut a, mut b) = (0.0, 85.0);
+    for _ in 0..200 {
+        let m = 0.5 * (a + b);
+        if icumsa_nd(m) < nd {
+            a = m;
+        } else {
+            b = m;
+        }
+    }
+    0.5 * (a + b)
+}
+
+pub struct BrixFromNd;
+impl Case for BrixFromNd {
+    const NAME: &'static str = "scales::SucroseBrix::value_at";
+    const UNIT: &'static str = "%Brix";
+    const DOMAIN: &'static str = "nD 1.33300–1.50397 (0–85 %Brix)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-12,
+        f32: 2.0e-4,
+        i32f32: 1.0e-6,
+        i8f24: 2.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.33300, 1.50397, 1001).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        (x[0] >= 1.33299 && x[0] <= 1.50398).then(|| icumsa_brix(x[0]))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        SucroseBrix.value_at(x[0])
+    }
+}
+
+pub struct NdFromBrix;
+impl Case for NdFromBrix {
+    const NAME: &'static str = "scales::SucroseBrix::nd20_at";
+    const UNIT: &'static str = "1 (index)";
+    const DOMAIN: &'static str = "0–85 %Brix";
+    const BUDGET: Budget = Budget {
+        f64: 2.0e-15,
+        f32: 3.0e-7,
+        i32f32: 2.0e-9,
+        i8f24: 4.0e-7,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(0.0, 85.0, 851).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(icumsa_nd(x[0]))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        SucroseBrix.nd20_at(x[0])
+    }
+}
+
+pub struct HoneyWaterFromNd;
+impl Case for HoneyWaterFromNd {
+    const NAME: &'static str = "scales::HoneyWater::value_at";
+    const UNIT: &'static str = "% water";
+    const DOMAIN: &'static str = "nD 1.4741–1.5043 (13–25 %)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-13,
+        f32: 5.0e-5,
+        i32f32: 2.0e-6,
+        i8f24: 5.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.4741, 1.5043, 603).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some((-0.2681 - (x[0] - 1.0).log10()) / 0.002243)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        HoneyWater.value_at(x[0])
+    }
+}
+
+pub struct SalinityFromNd;
+impl Case for SalinityFromNd {
+    const NAME: &'static str = "scales::Salinity::value_at";
+    const UNIT: &'static str = "‰";
+    const DOMAIN: &'static str = "nD 1.333005–1.340869 (0–43 ‰)";
+    const BUDGET: Budget = Budget {
+        f64: 2.0e-14,
+        f32: 5.0e-4,
+        i32f32: 2.0e-6,
+        i8f24: 2.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.333005, 1.340869, 787).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some((x[0] - 1.333_004_434) / 1.828_995_2e-4)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        Salinity.value_at(x[0])
+    }
+}
+
+/// OIV Table II nodes of the potential-alcohol scale (nD, % vol).
+const MUST: [(f64, f64); 21] = [
+    (1.34782, 4.88),
+    (1.34937, 5.51),
+    (1.35093, 6.15),
+    (1.35250, 6.79),
+    (1.35408, 7.44),
+    (1.35568, 8.08),
+    (1.35729, 8.74),
+    (1.35891, 9.40),
+    (1.36054, 10.06),
+    (1.36219, 10.73),
+    (1.36384, 11.40),
+    (1.36551, 12.08),
+    (1.36720, 12.75),
+    (1.36889, 13.44),
+    (1.37060, 14.13),
+    (1.37233, 14.82),
+    (1.37407, 15.52),
+    (1.37582, 16.22),
+    (1.37758, 16.92),
+    (1.37936, 17.64),
+    (1.38115, 18.35),
+];
+
+pub struct MustAlcoholFromNd;
+impl Case for MustAlcoholFromNd {
+    const NAME: &'static str = "scales::MustPotentialAlcohol::value_at";
+    const UNIT: &'static str = "% vol";
+    const DOMAIN: &'static str = "nD 1.34783–1.38114";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-13,
+        f32: 5.0e-5,
+        i32f32: 1.0e-7,
+        i8f24: 5.0e-5,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.34783, 1.38114, 1001).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        MUST.windows(2).find_map(|w| {
+            let ((x0, y0), (x1, y1)) = (w[0], w[1]);
+            (x[0] >= x0 && x[0] <= x1).then(|| y0 + (x[0] - x0) * (y1 - y0) / (x1 - x0))
+        })
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        MustPotentialAlcohol.value_at(x[0])
+    }
+}
+
+/// OIV Table I, 10–17 °C and 20 °C, columns 10–70 %Brix, in 0.01 %Brix.
+const OIV_T: [f64; 9] = [10.0, 11.0, 12.0, 13.0, 14.0, 15.0, 16.0, 17.0, 20.0];
+const OIV_ROWS: [[f64; 13]; 9] = [
+    [
+        -59., -62., -65., -67., -69., -71., -72., -73., -74., -75., -75., -75., -75.,
+    ],
+    [
+        -54., -57., -59., -61., -63., -64., -65., -66., -67., -68., -68., -68., -68.,
+    ],
+    [
+        -49., -51., -53., -55., -56., -57., -58., -59., -60., -60., -61., -61., -60.,
+    ],
+    [
+        -43., -45., -47., -48., -50., -51., -52., -52., -53., -53., -53., -53., -53.,
+    ],
+    [
+        -38., -39., -40., -42., -43., -44., -44., -45., -45., -46., -46., -46., -46.,
+    ],
+    [
+        -32., -33., -34., -35., -36., -37., -37., -38., -38., -38., -38., -38., -38.,
+    ],
+    [
+        -26., -27., -28., -28., -29., -30., -30., -30., -31., -31., -31., -31., -31.,
+    ],
+    [
+        -20., -20., -21., -21., -22., -22., -23., -23., -23., -23., -23., -23., -23.,
+    ],
+    [0.; 13],
+];
+
+fn oiv_correction(t: f64, brix: f64) -> f64 {
+    let r = OIV_T
+        .windows(2)
+        .position(|w| t >= w[0] && t <= w[1])
+        .unwrap();
+    let fr = (t - OIV_T[r]) / (OIV_T[r + 1] - OIV_T[r]);
+    let c = (((brix - 10.0) / 5.0).floor() as usize).min(11);
+    let fc = (brix - (10.0 + 5.0 * c as f64)) / 5.0;
+    let row = |i: usize| OIV_ROWS[i][c] + fc * (OIV_ROWS[i][c + 1] - OIV_ROWS[i][c]);
+    (row(r) + fr * (row(r + 1) - row(r))) / 100.0
+}
+
+pub struct SucroseCorrection;
+impl Case for SucroseCorrection {
+    const NAME: &'static str = "compensation::SucroseCompensation::brix_at_reference";
+    const UNIT: &'static str = "%Brix";
+    const DOMAIN: &'static str = "10–20 °C, 10–70 %Brix";
+    const BUDGET: Budget = Budget {
+        f64: 2.0e-14,
+        f32: 1.0e-5,
+        i32f32: 1.0e-9,
+        i8f24: 3.0e-7,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        let mut v = Vec::new();
+        for t in span(10.0, 20.0, 41) {
+            for b in span(10.0, 70.0, 61) {
+                v.push(vec![b, t]);
+            }
+        }
+        v
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(x[0] + oiv_correction(x[1], x[0]))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        SucroseCompensation::oiv().brix_at_reference(x[0], x[1])
+    }
+}
+
+pub struct LinearSampleCompensation;
+impl Case for LinearSampleCompensation {
+    const NAME: &'static str = "compensation::LinearCompensation::to_reference";
+    const UNIT: &'static str = "1 (index)";
+    const DOMAIN: &'static str = "nD 1.33–1.50, 5–40 °C, dn/dT ±5e-3";
+    const BUDGET: Budget = Budget {
+        f64: 2.0e-16,
+        f32: 1.2e-7,
+        i32f32: 5.0e-10,
+        i8f24: 3.0e-7,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        let mut v = Vec::new();
+        for n in span(1.33, 1.50, 11) {
+            for t in span(5.0, 40.0, 15) {
+                for k in span(-50.0, 50.0, 11) {
+                    v.push(vec![n, t, k]);
+                }
+            }
+        }
+        v
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(x[0] - x[2] * 1e-4 * (x[1] - 20.0))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        LinearCompensation {
+            dn_dt_e4: x[2],
+            min_c: S::from_i32(5)?,
+            max_c: S::from_i32(40)?,
+        }
+        .to_reference(x[0], x[1])
+    }
+}
+
+pub struct PrismIndex;
+impl Case for PrismIndex {
+    const NAME: &'static str = "compensation::PrismTemperature::index_at";
+    const UNIT: &'static str = "1 (index)";
+    const DOMAIN: &'static str = "nD20 1.5–1.9, −20–70 °C, dn/dT −10e-6–15e-6";
+    const BUDGET: Budget = Budget {
+        f64: 2.0e-16,
+        f32: 1.2e-7,
+        i32f32: 5.0e-10,
+        i8f24: 1.2e-7,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        let mut v = Vec::new();
+        for n in span(1.5, 1.9, 9) {
+            for t in span(-20.0, 70.0, 19) {
+                for k in span(-10.0, 15.0, 6) {
+                    v.push(vec![n, t, k]);
+                }
+            }
+        }
+        v
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(x[0] + x[2] * 1e-6 * (x[1] - 20.0))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        PrismTemperature {
+            nd20: x[0],
+            dn_dt_e6: x[2],
+        }
+        .index_at(x[1])
+    }
+}
+
+/// ln R from 6.2 (≈ 500 Ω) to 11.5 (≈ 100 kΩ), the 10 kΩ NTC's −20..110 °C.
+fn ln_r_sweep() -> Vec<Vec<f64>> {
+    span(6.2, 11.5, 531).map(|x| vec![x]).collect()
+}
+
+pub struct ThermistorSteinhartHart;
+impl Case for ThermistorSteinhartHart {
+    const NAME: &'static str = "thermistor::SteinhartHart::temperature_c";
+    const UNIT: &'static str = "°C";
+    const DOMAIN: &'static str = "ln R 6.2–11.5 (10 kΩ NTC, about −20–110 °C)";
+    const BUDGET: Budget = Budget {
+        f64: 3.0e-13,
+        f32: 1.0e-4,
+        i32f32: 1.0e-7,
+        i8f24: 3.0e-5,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        ln_r_sweep()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        let l = x[0];
+        Some(1.0 / (1.129148e-3 + 2.34125e-4 * l + 8.76741e-8 * l * l * l) - 273.15)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        SteinhartHart {
+            a_milli: embedded_optics::lit!(S, 1.129148),
+            b_ten_thousandths: embedded_optics::lit!(S, 2.34125),
+            c_ten_millionths: embedded_optics::lit!(S, 0.876741),
+        }
+        .temperature_c(x[0])
+    }
+}
+
+pub struct ThermistorBeta;
+impl Case for ThermistorBeta {
+    const NAME: &'static str = "thermistor::Beta::temperature_c";
+    const UNIT: &'static str = "°C";
+    const DOMAIN: &'static str = "ln R 6.2–11.5, β 3950 K, 10 kΩ at 25 °C";
+    const BUDGET: Budget = Budget {
+        f64: 3.0e-13,
+        f32: 1.0e-4,
+        i32f32: 1.0e-6,
+        i8f24: 2.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        ln_r_sweep()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(1.0 / (1.0 / 298.15 + (x[0] - 10_000f64.ln()) / 3950.0) - 273.15)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        Beta {
+            beta_k: 3950,
+            r0_ohms: 10_000,
+            t0_c: S::from_i32(25)?,
+        }
+        .temperature_c(x[0])
+    }
+}
+
+pub struct RecordCorrection;
+impl Case for RecordCorrection {
+    const NAME: &'static str = "record::CalibrationRecord::correct";
+    const UNIT: &'static str = "1 (index)";
+    const DOMAIN: &'static str = "nD 1.30–1.70, c0 −0.01, c1 1.004, c2 −3.2e-4";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-15,
+        f32: 5.0e-7,
+        i32f32: 2.0e-9,
+        i8f24: 6.0e-7,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.30, 1.70, 401).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        let r = record();
+        let (c0, c1, c2) = (
+            r.c0.to_num::<f64>(),
+            r.c1.to_num::<f64>(),
+            r.c2.to_num::<f64>(),
+        );
+        Some(c0 + c1 * x[0] + c2 * x[0] * x[0])
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        record().correct(x[0])
+    }
+}
+
+fn record() -> CalibrationRecord {
+    CalibrationRecord {
+        sequence: 1,
+        c0: I32F32::from_num(-0.01),
+        c1: I32F32::from_num(1.004),
+        c2: I32F32::from_num(-0.00032),
+        zero_temperature_mc: 20_000,
+        led_wavelength_pm: 589_300,
+    }
+}
