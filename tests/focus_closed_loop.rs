@@ -10,7 +10,9 @@
 //! - every run ends within its frame budget.
 
 use embedded_optics::Scalar;
-use embedded_optics::focus_search::{FailureReason, FocusSearch, PhaseHint, SearchConfig, Step};
+use embedded_optics::focus_search::{
+    FailureReason, FocusSearch, PhaseHint, SearchConfig, Step, TravelEnd,
+};
 use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, SimRng, run_search};
 use fixed::types::{I8F24, I32F32};
 
@@ -199,4 +201,122 @@ fn closed_loop_in_every_number_type() {
     let mut f = study::<I8F24>(300, 0x825, (0.0, 0.02), None);
     f.report("contrast search, I8F24, flat scenes");
     assert_eq!(f.done, 0);
+}
+
+/// Drives a search with a metric that is a function of the commanded code;
+/// returns the commands and the final step.
+fn drive(search: &mut FocusSearch<f64>, metric: impl Fn(i32) -> u64) -> (Vec<i32>, Step) {
+    let mut commands = Vec::new();
+    let mut step = search.start();
+    while let Step::Move(code) = step {
+        commands.push(code);
+        step = search.feed(metric(code));
+    }
+    (commands, step)
+}
+
+fn bump(peak: i32) -> impl Fn(i32) -> u64 {
+    move |code| 1_000_000 / (1 + u64::from((code - peak).unsigned_abs()).pow(2) / 16)
+}
+
+#[test]
+fn peak_at_either_end_of_travel_is_reported() {
+    let cfg = SearchConfig::<f64>::typical(0, 1023, 60);
+    for (peak, end) in [
+        (1100, TravelEnd::High),
+        (0, TravelEnd::Low),
+        (1500, TravelEnd::High),
+        (-300, TravelEnd::Low),
+    ] {
+        let (_, step) = drive(&mut FocusSearch::new(cfg).unwrap(), bump(peak));
+        let Step::Done(f) = step else {
+            panic!("{peak}: {step:?}")
+        };
+        assert_eq!(f.travel_end, Some(end), "{peak}: {f:?}");
+        assert_eq!(f.code, if end == TravelEnd::High { 1023 } else { 0 });
+    }
+}
+
+#[test]
+fn final_position_and_fine_samples_are_approached_from_below() {
+    let cfg = SearchConfig::<f64>::typical(0, 1023, 60);
+    for peak in [37, 200, 517, 880] {
+        let (cmds, step) = drive(&mut FocusSearch::new(cfg).unwrap(), bump(peak));
+        let Step::Done(f) = step else {
+            panic!("{step:?}")
+        };
+        assert!((f.code - peak).abs() <= 2, "{peak}: {f:?}");
+        // The last command is the target, the one before it lies below.
+        let n = cmds.len();
+        assert_eq!(cmds[n - 1], f.code);
+        assert!(cmds[n - 2] < f.code, "{cmds:?}");
+        // After the coarse scan, every downward move is a pre-move: the command
+        // after it is higher.
+        for w in cmds.windows(3) {
+            if w[1] < w[0] {
+                assert!(w[2] > w[1], "{cmds:?}");
+            }
+        }
+    }
+}
+
+#[test]
+fn budget_exhaustion_and_unconfirmed_peak_fail() {
+    let mut cfg = SearchConfig::<f64>::typical(0, 1023, 60);
+    cfg.frame_budget = 10;
+    let (cmds, step) = drive(&mut FocusSearch::new(cfg).unwrap(), bump(700));
+    let Step::Failed(f) = step else {
+        panic!("{step:?}")
+    };
+    assert_eq!(f.reason, FailureReason::FrameBudgetExhausted);
+    assert_eq!(f.frames, 10);
+    assert_eq!(cmds.len(), 10);
+
+    // The subject leaves just as the lens reaches its final position.
+    let cfg = SearchConfig::<f64>::typical(0, 1023, 60);
+    let mut search = FocusSearch::new(cfg).unwrap();
+    let mut step = search.start();
+    let mut last = Vec::new();
+    while let Step::Move(code) = step {
+        last.push(code);
+        let n = last.len();
+        // Confirmation frame: the target after a lower pre-move, late in the search.
+        let confirming = n > 20 && last[n - 2] < code && code - last[n - 2] == cfg.backlash_margin;
+        step = search.feed(if confirming { 10 } else { bump(400)(code) });
+    }
+    let Step::Failed(f) = step else {
+        panic!("{step:?}")
+    };
+    assert_eq!(f.reason, FailureReason::PeakNotConfirmed);
+    assert!((f.park_code - 400).abs() <= 2);
+}
+
+#[test]
+fn noisier_metrics_and_marginal_contrast() {
+    // Three times the noise (15 %): reported, and never a wrong Done beyond
+    // twice the depth of focus.
+    let lens = {
+        let mut l = LensModel::<f64>::phone_module();
+        l.metric_noise = 0.15;
+        l
+    };
+    let cfg = config(&lens);
+    let mut rng = SimRng::new(0x0015E);
+    let mut fig = Figures::default();
+    for _ in 0..1000 {
+        let scene = random_scene::<f64>(&mut rng, 0.25, 1.0);
+        let start = rng.below(1024) as i32;
+        let mut cam = SimCamera::new(lens, scene, start, rng.next_u64()).unwrap();
+        let step = run_search(&mut cam, &mut FocusSearch::new(cfg).unwrap(), None).unwrap();
+        fig.add(step, cam.focus_error_dof().unwrap(), cfg.frame_budget);
+    }
+    fig.report("contrast search, f64, 15 % metric noise");
+    assert_eq!(fig.over_budget, 0);
+    assert!(fig.within_dof * 100 >= fig.runs * 95, "{fig:?}");
+    // Marginal contrast (0.03–0.25) at the standard noise: Done or a reported
+    // failure, and a Done is within the depth of focus.
+    let mut fig = study::<f64>(1000, 0x3A7, (0.03, 0.25), None);
+    fig.report("contrast search, f64, marginal contrast 0.03–0.25");
+    assert_eq!(fig.over_budget, 0);
+    assert_eq!(fig.wrong_done, 0, "{fig:?}");
 }

@@ -7,6 +7,7 @@
 mod harness;
 mod refraction;
 mod scalar;
+mod search;
 
 use harness::{Row, row};
 
@@ -23,6 +24,10 @@ fn all_rows() -> Vec<Row> {
         row::<refraction::IndexFromCriticalAngle>(),
         row::<refraction::RefractionAngle>(),
         row::<refraction::FresnelUnpolarised>(),
+        row::<search::PeakParabolic>(),
+        row::<search::PeakGaussian>(),
+        row::<search::SimBlur>(),
+        row::<search::SimMetric>(),
     ]
 }
 
