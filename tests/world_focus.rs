@@ -220,7 +220,7 @@ fn metric_model_matches_blurred_texture() {
     }
     println!("metric model vs blurred texture, worst |Δ| (2–12 px): {worst:.3}");
     assert!(worst < 0.05, "{worst}");
-    // And the model the closed loop uses gives exactly this at zero contrast…
+    // A featureless subject gives the floor alone, at any lens position.
     let flat = Scene {
         vergence_dpt: 1.0,
         contrast: 0.0,
