@@ -79,6 +79,7 @@ impl Pixel for u16 {
 /// constructor checks that the whole rectangle lies inside the slice, so the
 /// metrics never index out of bounds.
 #[derive(Clone, Copy, Debug)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Roi<'a, P: Pixel> {
     data: &'a [P],
     offset: usize,
@@ -206,9 +207,9 @@ fn neighbourhoods<'a, P: Pixel>(
         })
 }
 
-/// Tenengrad: mean of the squared Sobel gradient magnitude `gx² + gy²` over the
-/// ROI's interior, counting only pixels where it exceeds `threshold` (Krotkov's
-/// form; 0 keeps every pixel), in 1/256 units.
+/// Tenengrad: the squared Sobel gradient magnitude `gx² + gy²` summed over the
+/// ROI's interior pixels where it exceeds `threshold` (Krotkov's form; 0 keeps
+/// every pixel), divided by the number of interior pixels, in 1/256 units.
 ///
 /// Kernels: `gx = [-1 0 1; -2 0 2; -1 0 1]`, `gy = gxᵀ`. The ROI must be at least
 /// 3 × 3.
