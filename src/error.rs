@@ -33,6 +33,16 @@ pub enum Quantity {
     ScaleValue,
     /// A temperature coefficient (dn/dT).
     TemperatureCoefficient,
+    /// The geometry of an image region of interest (size, stride, offset).
+    RegionOfInterest,
+    /// A lens actuator code (lens position command).
+    ActuatorCode,
+    /// A focus-search setting (step, ratio, frame budget).
+    SearchSetting,
+    /// A confidence value in [0, 1] (phase-detect hint).
+    Confidence,
+    /// A parameter of the autofocus simulation (lens, scene, noise).
+    SimulationSetting,
 }
 
 impl fmt::Display for Quantity {
@@ -49,6 +59,11 @@ impl fmt::Display for Quantity {
             Quantity::AdcCode => "ADC code",
             Quantity::ScaleValue => "scale value",
             Quantity::TemperatureCoefficient => "temperature coefficient",
+            Quantity::RegionOfInterest => "region of interest",
+            Quantity::ActuatorCode => "actuator code",
+            Quantity::SearchSetting => "focus-search setting",
+            Quantity::Confidence => "confidence",
+            Quantity::SimulationSetting => "simulation setting",
         })
     }
 }

@@ -31,6 +31,9 @@
 extern crate std;
 
 pub mod error;
+pub mod focus_metric;
+pub mod focus_search;
+pub mod focus_sim;
 pub mod fresnel;
 pub mod medium;
 pub mod refraction;

@@ -8,6 +8,7 @@ mod cal;
 mod harness;
 mod refraction;
 mod scalar;
+mod search;
 
 use harness::{Row, row};
 
@@ -35,6 +36,10 @@ fn all_rows() -> Vec<Row> {
         row::<cal::ThermistorSteinhartHart>(),
         row::<cal::ThermistorBeta>(),
         row::<cal::RecordCorrection>(),
+        row::<search::PeakParabolic>(),
+        row::<search::PeakGaussian>(),
+        row::<search::SimBlur>(),
+        row::<search::SimMetric>(),
     ]
 }
 

@@ -1,0 +1,702 @@
+//! Contrast-detect autofocus search: a frame-by-frame state machine.
+//!
+//! The camera pipeline gives one focus metric per frame (see
+//! [`focus_metric`](crate::focus_metric)); [`FocusSearch::feed`] takes it and
+//! answers the next actuator code to command, or that the search is done, or
+//! that it failed and where to park the lens. Nothing blocks and nothing
+//! allocates: the search keeps its samples in a fixed-capacity array.
+//!
+//! How it searches:
+//!
+//! 1. **Coarse scan** from the low end of travel (`code_min`, the infinity side
+//!    on a usual module) upward in `coarse_step`, stopping as soon as a
+//!    prominent peak has been passed (two samples in a row below `drop_ratio` of
+//!    the best), or at the end of travel.
+//! 2. **Flat curve**: if the best coarse sample is weaker than `min_peak_metric`,
+//!    or the weakest is still `flat_ratio` of the best, the scene has too little
+//!    contrast to focus on: the search fails with
+//!    [`FailureReason::LowContrast`] and parks at the hyperfocal code, where the
+//!    most of the scene is acceptably sharp.
+//! 3. **Fine scan** in `fine_step` across the two coarse intervals around the
+//!    coarse peak, again stopping once the peak is passed.
+//! 4. **Interpolation** of the peak from the best fine sample and its two
+//!    neighbours ([`interpolate_peak`], parabolic or Gaussian fit).
+//! 5. **Final approach and confirmation**: the lens goes `backlash_margin` below
+//!    the target, then to the target, and the metric there must reach
+//!    `confirm_ratio` of the best fine sample, otherwise the search fails
+//!    ([`FailureReason::PeakNotConfirmed`]). It never says done without that
+//!    check.
+//!
+//! Every sample is taken after a move in the increasing-code direction (scans
+//! begin with a move `backlash_margin` below their first code), so the
+//! actuator's backlash is the same for every sample and for the final position
+//! and cancels out. The one exception is the very first coarse sample at
+//! `code_min`, reached from wherever the lens was (nothing lies below it).
+//!
+//! **Hybrid (phase-detect hint)**: [`FocusSearch::start_with_hint`] takes a
+//! target code and a confidence from a phase-detect sensor. At or above
+//! `hint_min_confidence` the search scans only `hint_half_window` fine steps on
+//! each side of the target; if the peak is not bracketed there, the window is
+//! flat, or the confirmation fails, it falls back to the full search. Below the
+//! threshold it runs the full search directly.
+//!
+//! **Frame budget**: every metric fed counts one frame. If the search has not
+//! finished when `frame_budget` frames are used, it fails with
+//! [`FailureReason::FrameBudgetExhausted`]; it therefore always ends within the
+//! budget, whatever metrics it is fed.
+//!
+//! Peak at the end of travel: if the best sample is the first or last code of
+//! travel, the search ends there (after confirmation) and says so in
+//! [`Focused::travel_end`]: the subject is probably nearer than the closest
+//! focus (or beyond infinity, for a lens whose low end sits past infinity).
+//!
+//! ```
+//! use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
+//! // A made-up metric curve peaking at code 400.
+//! let metric = |code: i32| 1_000_000 / (1 + u64::from((code - 400).unsigned_abs()).pow(2) / 64);
+//! let mut search = FocusSearch::new(SearchConfig::<f32>::typical(0, 1023, 160)).unwrap();
+//! let mut step = search.start();
+//! let mut code = 0;
+//! while let Step::Move(c) = step {
+//!     code = c;
+//!     step = search.feed(metric(code));
+//! }
+//! let Step::Done(focused) = step else { panic!("{step:?}") };
+//! assert!((focused.code - 400).abs() <= 4);
+//! ```
+
+use crate::error::{Error, Quantity};
+use crate::lit;
+use crate::scalar::Scalar;
+use core::mem;
+use heapless::Vec;
+
+/// Most samples one scan holds; bounds the coarse and fine scans' lengths.
+pub const SCAN_CAPACITY: usize = 64;
+
+/// Largest actuator code magnitude accepted (keeps code arithmetic exact in `i32`).
+pub const CODE_LIMIT: i32 = 1 << 24;
+
+/// How the peak is interpolated from three equally spaced samples.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum PeakFit {
+    /// Vertex of the parabola through the three samples.
+    Parabolic,
+    /// Vertex of the parabola through their logarithms (exact for a Gaussian
+    /// curve); falls back to parabolic when a neighbour is zero.
+    Gaussian,
+}
+
+/// Offset of the peak from the centre sample, in sample spacings, in [-1/2, 1/2].
+///
+/// `left`, `centre`, `right` are metrics at three equally spaced lens codes, and
+/// `centre` must be the largest ([`Error::OutOfRange`] otherwise). A flat top
+/// gives 0. The metrics are first scaled to the centre (ratios in [0, 1]), so any
+/// `u64` metric works in every number type, `I8F24` included.
+///
+/// ```
+/// use embedded_optics::focus_search::{interpolate_peak, PeakFit};
+/// // y = 16·100 − (4x − 1)² at x = −1, 0, 1: vertex at x = 1/4.
+/// let d: f64 = interpolate_peak(1575, 1599, 1591, PeakFit::Parabolic).unwrap();
+/// assert!((d - 0.25).abs() < 1e-12);
+/// ```
+pub fn interpolate_peak<S: Scalar>(
+    left: u64,
+    centre: u64,
+    right: u64,
+    fit: PeakFit,
+) -> Result<S, Error> {
+    if left > centre || right > centre {
+        return Err(Error::OutOfRange(Quantity::Value));
+    }
+    if centre == 0 {
+        return Ok(S::ZERO);
+    }
+    let (num, den) = match fit {
+        PeakFit::Gaussian if left > 0 && right > 0 => {
+            // Ratios to the centre, scaled so the centre fits 30 bits (exact to
+            // 2^-30 of the centre); ln c is then 0.
+            let shift = (64 - centre.leading_zeros()).saturating_sub(30);
+            let c = i32::try_from(centre >> shift).map_err(|_| Error::Overflow)?;
+            let l = i32::try_from(left >> shift).map_err(|_| Error::Overflow)?;
+            let r = i32::try_from(right >> shift).map_err(|_| Error::Overflow)?;
+            if l == 0 || r == 0 {
+                return interpolate_peak(left, centre, right, PeakFit::Parabolic);
+            }
+            let (la, lb) = (S::from_ratio(l, c)?.ln()?, S::from_ratio(r, c)?.ln()?);
+            (la.sub(lb)?, la.add(lb)?.mul(S::TWO)?)
+        }
+        _ => {
+            // With the drops d1 = c − l, d2 = c − r (exact integers),
+            // δ = (l − r) / (2 (l − 2c + r)) = (d1 − d2) / (2 (d1 + d2)).
+            let (d1, d2) = (centre - left, centre - right);
+            let shift = (64 - (d1 | d2).leading_zeros()).saturating_sub(29);
+            let (d1, d2) = (d1 >> shift, d2 >> shift);
+            let (d1, d2) = (
+                i32::try_from(d1).map_err(|_| Error::Overflow)?,
+                i32::try_from(d2).map_err(|_| Error::Overflow)?,
+            );
+            if d1 + d2 == 0 {
+                return Ok(S::ZERO);
+            }
+            // One rounded integer division: exact to the type's resolution.
+            let d = S::from_ratio(d1 - d2, 2 * (d1 + d2))?;
+            return Ok(d.max(S::HALF.neg()?).min(S::HALF));
+        }
+    };
+    if den >= S::ZERO {
+        return Ok(S::ZERO);
+    }
+    let d = num.div(den)?;
+    Ok(d.max(S::HALF.neg()?).min(S::HALF))
+}
+
+/// `x · 2^16` rounded, for `x` in [0, 1.99]; the step that turns a ratio held in
+/// any [`Scalar`] (an `I8F24` holds no more than 128) into an integer.
+pub(crate) fn unit_to_q16<S: Scalar>(x: S, quantity: Quantity) -> Result<u32, Error> {
+    let x = x.check_range(quantity, S::ZERO, lit!(S, 1.99))?;
+    // Six integer bits, then five and five: no intermediate exceeds 128.
+    let (hi, rest) = split_floor(x.mul(lit!(S, 64.0))?)?;
+    let (mid, rest) = split_floor(rest.mul(lit!(S, 32.0))?)?;
+    let lo = rest.mul(lit!(S, 32.0))?.round_to_i32()?;
+    u32::try_from(hi * 1024 + mid * 32 + lo).map_err(|_| Error::Overflow)
+}
+
+/// Integer part (floor) and fraction of a non-negative value.
+pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
+    let mut n = x.round_to_i32()?;
+    if S::from_i32(n)? > x {
+        n -= 1;
+    }
+    Ok((n, x.sub(S::from_i32(n)?)?))
+}
+
+/// `a < ratio · b` with `ratio` in 2^-16 units, exact.
+fn below(a: u64, ratio_q16: u32, b: u64) -> bool {
+    (u128::from(a) << 16) < u128::from(b) * u128::from(ratio_q16)
+}
+
+/// Settings of a [`FocusSearch`]. Codes are actuator codes, increasing toward
+/// near focus (macro).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SearchConfig<S> {
+    /// Lowest code of travel (the infinity end).
+    pub code_min: i32,
+    /// Highest code of travel (the macro end).
+    pub code_max: i32,
+    /// Coarse scan step, codes (≥ `fine_step`).
+    pub coarse_step: i32,
+    /// Fine scan step, codes (≥ 1).
+    pub fine_step: i32,
+    /// Overtravel below a target before approaching it upward, codes (≥ 0; at
+    /// least the actuator's backlash).
+    pub backlash_margin: i32,
+    /// Most frames (metrics fed) the search may use.
+    pub frame_budget: u16,
+    /// Where to park on a flat scene: the hyperfocal position's code.
+    pub hyperfocal_code: i32,
+    /// A coarse peak weaker than this means too little contrast.
+    pub min_peak_metric: u64,
+    /// A coarse curve whose weakest sample is at least this fraction of its best
+    /// is flat, in [0, 1].
+    pub flat_ratio: S,
+    /// A scan stops after two samples in a row below this fraction of its best,
+    /// in [0, 1].
+    pub drop_ratio: S,
+    /// The metric at the final position must reach this fraction of the best
+    /// fine sample, in [0, 1].
+    pub confirm_ratio: S,
+    /// Peak interpolation.
+    pub fit: PeakFit,
+    /// Phase-detect confidence at or above which the hint is used, in [0, 1].
+    pub hint_min_confidence: S,
+    /// Half-width of the scan around a phase-detect target, in fine steps (≥ 1).
+    pub hint_half_window: i32,
+}
+
+impl<S: Scalar> SearchConfig<S> {
+    /// Settings a typical phone-class module starts from: 16 coarse intervals
+    /// over travel, fine step a quarter of the coarse one, 4 fine steps of
+    /// backlash margin, budget of 40 frames, Gaussian fit.
+    pub fn typical(code_min: i32, code_max: i32, hyperfocal_code: i32) -> Self {
+        let span = code_max.saturating_sub(code_min).max(16);
+        let coarse = (span / 16).max(4);
+        let fine = (coarse / 4).max(1);
+        Self {
+            code_min,
+            code_max,
+            coarse_step: coarse,
+            fine_step: fine,
+            backlash_margin: 4 * fine,
+            frame_budget: 40,
+            hyperfocal_code,
+            min_peak_metric: 1,
+            flat_ratio: lit!(S, 0.5),
+            drop_ratio: lit!(S, 0.5),
+            confirm_ratio: lit!(S, 0.6),
+            fit: PeakFit::Gaussian,
+            hint_min_confidence: lit!(S, 0.6),
+            hint_half_window: 2,
+        }
+    }
+}
+
+/// A phase-detect estimate: where it thinks the lens should go, and how sure it
+/// is.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct PhaseHint<S> {
+    /// Estimated in-focus actuator code.
+    pub target_code: i32,
+    /// Confidence in [0, 1].
+    pub confidence: S,
+}
+
+/// Which end of travel the peak was found at.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum TravelEnd {
+    /// `code_min` (infinity side).
+    Low,
+    /// `code_max` (macro side).
+    High,
+}
+
+/// A successful search.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Focused {
+    /// The in-focus code; the lens is there now, approached from below.
+    pub code: i32,
+    /// `Some` when the peak is at an end of travel (subject possibly out of the
+    /// focus range).
+    pub travel_end: Option<TravelEnd>,
+    /// Frames used.
+    pub frames: u16,
+    /// `true` when the phase-detect hint was confirmed without a full search.
+    pub from_hint: bool,
+}
+
+/// Why a search gave up.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum FailureReason {
+    /// The metric curve is flat: too little contrast to focus on.
+    LowContrast,
+    /// The frame budget ran out first.
+    FrameBudgetExhausted,
+    /// The metric at the final position fell short of the peak (the subject or
+    /// the light changed, or the noise is too high).
+    PeakNotConfirmed,
+}
+
+/// A failed search, with where the lens should go.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Failure {
+    /// Why.
+    pub reason: FailureReason,
+    /// Where to park the lens: the hyperfocal code on a flat scene, otherwise
+    /// the best estimate so far.
+    pub park_code: i32,
+    /// Frames used.
+    pub frames: u16,
+}
+
+/// The search's answer to a frame.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Step {
+    /// Command this code, and feed the metric of the next frame taken there.
+    Move(i32),
+    /// Finished: in focus.
+    Done(Focused),
+    /// Finished: no focus found.
+    Failed(Failure),
+}
+
+/// One measured point of a scan.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Sample {
+    /// Actuator code.
+    pub code: i32,
+    /// Focus metric there.
+    pub metric: u64,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum ScanKind {
+    Coarse,
+    Fine,
+    Hint,
+}
+
+#[derive(Clone, Debug)]
+struct Scan {
+    kind: ScanKind,
+    next: i32,
+    end: i32,
+    step: i32,
+    samples: Vec<Sample, SCAN_CAPACITY>,
+}
+
+impl Scan {
+    fn best(&self) -> Option<(usize, Sample)> {
+        let mut best: Option<(usize, Sample)> = None;
+        for (i, s) in self.samples.iter().enumerate() {
+            if best.is_none_or(|(_, b)| s.metric > b.metric) {
+                best = Some((i, *s));
+            }
+        }
+        best
+    }
+
+    fn weakest(&self) -> u64 {
+        self.samples.iter().map(|s| s.metric).min().unwrap_or(0)
+    }
+}
+
+#[derive(Clone, Copy, Debug)]
+struct Target {
+    code: i32,
+    best_metric: u64,
+    travel_end: Option<TravelEnd>,
+    from_hint: bool,
+}
+
+#[derive(Clone, Debug)]
+enum Phase {
+    Idle,
+    /// A backlash pre-move was commanded; its frame's metric is ignored.
+    PreMove(Scan),
+    Scanning(Scan),
+    /// The overtravel below the target was commanded.
+    Settle(Target),
+    /// The target was commanded; its metric confirms.
+    Confirm(Target),
+    Finished(Step),
+}
+
+/// The contrast-detect search state machine (see the module docs).
+#[derive(Clone, Debug)]
+pub struct FocusSearch<S> {
+    config: SearchConfig<S>,
+    flat_q16: u32,
+    drop_q16: u32,
+    confirm_q16: u32,
+    phase: Phase,
+    frames: u16,
+    last_command: Option<i32>,
+    park_code: i32,
+}
+
+impl<S: Scalar> FocusSearch<S> {
+    /// Checks the settings and makes an idle search.
+    ///
+    /// [`Error::OutOfRange`] with [`Quantity::ActuatorCode`] for codes outside
+    /// ±[`CODE_LIMIT`], an empty travel or a hyperfocal code off travel; with
+    /// [`Quantity::SearchSetting`] for steps < 1, `fine_step > coarse_step`,
+    /// scans longer than [`SCAN_CAPACITY`], a negative margin, a zero budget or
+    /// a half window < 1; [`Error::NotFinite`] / [`Error::OutOfRange`] for
+    /// ratios that are NaN, infinite or outside [0, 1].
+    pub fn new(config: SearchConfig<S>) -> Result<Self, Error> {
+        let code = Error::OutOfRange(Quantity::ActuatorCode);
+        let setting = Error::OutOfRange(Quantity::SearchSetting);
+        let c = &config;
+        let in_limit = |x: i32| (-CODE_LIMIT..=CODE_LIMIT).contains(&x);
+        if !in_limit(c.code_min) || !in_limit(c.code_max) || c.code_min >= c.code_max {
+            return Err(code);
+        }
+        if !(c.code_min..=c.code_max).contains(&c.hyperfocal_code) {
+            return Err(code);
+        }
+        let span = c.code_max - c.code_min;
+        let cap = (SCAN_CAPACITY - 2) as i32;
+        let steps_ok = c.fine_step >= 1
+            && c.coarse_step >= c.fine_step
+            && c.coarse_step <= span
+            && span / c.coarse_step <= cap
+            && 2 * (c.coarse_step / c.fine_step) <= cap
+            && (1..=cap / 2).contains(&c.hint_half_window)
+            && (0..=span).contains(&c.backlash_margin)
+            && c.frame_budget >= 1;
+        if !steps_ok {
+            return Err(setting);
+        }
+        let ratio = |r: S| {
+            r.check_range(Quantity::SearchSetting, S::ZERO, S::ONE)
+                .and_then(|r| unit_to_q16(r, Quantity::SearchSetting))
+        };
+        let flat_q16 = ratio(c.flat_ratio)?;
+        let drop_q16 = ratio(c.drop_ratio)?;
+        let confirm_q16 = ratio(c.confirm_ratio)?;
+        c.hint_min_confidence
+            .check_range(Quantity::Confidence, S::ZERO, S::ONE)?;
+        Ok(Self {
+            park_code: config.hyperfocal_code,
+            config,
+            flat_q16,
+            drop_q16,
+            confirm_q16,
+            phase: Phase::Idle,
+            frames: 0,
+            last_command: None,
+        })
+    }
+
+    /// The settings.
+    pub fn config(&self) -> &SearchConfig<S> {
+        &self.config
+    }
+
+    /// Frames used so far.
+    pub fn frames_used(&self) -> u16 {
+        self.frames
+    }
+
+    /// Starts (or restarts) a full contrast search; returns the first move.
+    pub fn start(&mut self) -> Step {
+        self.frames = 0;
+        self.park_code = self.config.hyperfocal_code;
+        self.begin_full()
+    }
+
+    /// Starts a hybrid search from a phase-detect hint; returns the first move.
+    ///
+    /// Errors (and the search stays as it was) for a confidence that is NaN,
+    /// infinite or outside [0, 1], or a target code off travel.
+    pub fn start_with_hint(&mut self, hint: PhaseHint<S>) -> Result<Step, Error> {
+        let confidence = hint
+            .confidence
+            .check_range(Quantity::Confidence, S::ZERO, S::ONE)?;
+        let c = self.config;
+        if !(c.code_min..=c.code_max).contains(&hint.target_code) {
+            return Err(Error::OutOfRange(Quantity::ActuatorCode));
+        }
+        if confidence < c.hint_min_confidence {
+            return Ok(self.start());
+        }
+        self.frames = 0;
+        self.park_code = hint.target_code;
+        let half = c.hint_half_window * c.fine_step;
+        let lo = hint.target_code.saturating_sub(half).max(c.code_min);
+        let hi = hint.target_code.saturating_add(half).min(c.code_max);
+        Ok(self.begin_scan(ScanKind::Hint, lo, hi, c.fine_step))
+    }
+
+    /// Feeds the focus metric of the frame taken at the last commanded code;
+    /// returns what to do next. After `Done` or `Failed` it keeps returning
+    /// that answer; before any start it starts a full search.
+    pub fn feed(&mut self, metric: u64) -> Step {
+        let step = match mem::replace(&mut self.phase, Phase::Idle) {
+            Phase::Finished(step) => {
+                self.phase = Phase::Finished(step);
+                return step;
+            }
+            Phase::Idle => return self.start(),
+            phase => {
+                self.frames = self.frames.saturating_add(1);
+                self.advance(phase, metric)
+            }
+        };
+        let step = match step {
+            Step::Move(_) if self.frames >= self.config.frame_budget => Step::Failed(Failure {
+                reason: FailureReason::FrameBudgetExhausted,
+                park_code: self.park_code,
+                frames: self.frames,
+            }),
+            other => other,
+        };
+        match step {
+            Step::Move(code) => self.last_command = Some(code),
+            terminal => self.phase = Phase::Finished(terminal),
+        }
+        step
+    }
+
+    fn advance(&mut self, phase: Phase, metric: u64) -> Step {
+        match phase {
+            Phase::PreMove(scan) => {
+                let code = scan.next;
+                self.phase = Phase::Scanning(scan);
+                Step::Move(code)
+            }
+            Phase::Scanning(scan) => self.on_sample(scan, metric),
+            Phase::Settle(target) => {
+                self.phase = Phase::Confirm(target);
+                Step::Move(target.code)
+            }
+            Phase::Confirm(target) => {
+                if below(metric, self.confirm_q16, target.best_metric) {
+                    if target.from_hint {
+                        return self.begin_full();
+                    }
+                    return Step::Failed(Failure {
+                        reason: FailureReason::PeakNotConfirmed,
+                        park_code: target.code,
+                        frames: self.frames,
+                    });
+                }
+                Step::Done(Focused {
+                    code: target.code,
+                    travel_end: target.travel_end,
+                    frames: self.frames,
+                    from_hint: target.from_hint,
+                })
+            }
+            Phase::Idle | Phase::Finished(_) => self.begin_full(),
+        }
+    }
+
+    fn begin_full(&mut self) -> Step {
+        let c = self.config;
+        self.begin_scan(ScanKind::Coarse, c.code_min, c.code_max, c.coarse_step)
+    }
+
+    /// Starts a scan from `lo` to `hi`, with a pre-move below `lo` unless the lens
+    /// is known to be below it already.
+    fn begin_scan(&mut self, kind: ScanKind, lo: i32, hi: i32, step: i32) -> Step {
+        let scan = Scan {
+            kind,
+            next: lo,
+            end: hi,
+            step,
+            samples: Vec::new(),
+        };
+        let pre = lo
+            .saturating_sub(self.config.backlash_margin)
+            .max(self.config.code_min);
+        let needs_pre = pre < lo && self.last_command.is_none_or(|last| last > pre);
+        if needs_pre {
+            self.phase = Phase::PreMove(scan);
+            Step::Move(pre)
+        } else {
+            self.phase = Phase::Scanning(scan);
+            Step::Move(lo)
+        }
+    }
+
+    fn prominent(&self, scan: &Scan, best: u64) -> bool {
+        best >= self.config.min_peak_metric && below(scan.weakest(), self.flat_q16, best)
+    }
+
+    fn on_sample(&mut self, mut scan: Scan, metric: u64) -> Step {
+        let full = scan
+            .samples
+            .push(Sample {
+                code: scan.next,
+                metric,
+            })
+            .is_err();
+        let passed_peak = match scan.best() {
+            Some((i, best)) => {
+                let after = scan.samples.get(i + 1..).unwrap_or(&[]);
+                after.len() >= 2
+                    && after
+                        .iter()
+                        .rev()
+                        .take(2)
+                        .all(|s| below(s.metric, self.drop_q16, best.metric))
+                    && (scan.kind != ScanKind::Coarse || self.prominent(&scan, best.metric))
+            }
+            None => false,
+        };
+        if !(full || passed_peak || scan.next >= scan.end) {
+            scan.next = scan.next.saturating_add(scan.step).min(scan.end);
+            let code = scan.next;
+            self.phase = Phase::Scanning(scan);
+            return Step::Move(code);
+        }
+        let Some((index, best)) = scan.best() else {
+            return self.begin_full();
+        };
+        let c = self.config;
+        match scan.kind {
+            ScanKind::Coarse => {
+                if !self.prominent(&scan, best.metric) {
+                    return Step::Failed(Failure {
+                        reason: FailureReason::LowContrast,
+                        park_code: c.hyperfocal_code,
+                        frames: self.frames,
+                    });
+                }
+                self.park_code = best.code;
+                let lo = best.code.saturating_sub(c.coarse_step).max(c.code_min);
+                let hi = best.code.saturating_add(c.coarse_step).min(c.code_max);
+                self.begin_scan(ScanKind::Fine, lo, hi, c.fine_step)
+            }
+            ScanKind::Fine | ScanKind::Hint => {
+                let hint = scan.kind == ScanKind::Hint;
+                // A hint window must show a real peak: strong enough, and falling
+                // below `flat_ratio` of it on both sides (a noisy bump on the
+                // curve's tail does not).
+                let falls = |side: &[Sample]| {
+                    side.iter()
+                        .any(|s| below(s.metric, self.flat_q16, best.metric))
+                };
+                let (before, after) = scan.samples.split_at(index.min(scan.samples.len()));
+                let bracketed = falls(before) && falls(after.get(1..).unwrap_or(&[]));
+                if hint && (best.metric < c.min_peak_metric || !bracketed) {
+                    return self.begin_full();
+                }
+                let left = index.checked_sub(1).and_then(|i| scan.samples.get(i));
+                let right = scan.samples.get(index + 1);
+                let (code, travel_end) = match (left, right) {
+                    (Some(l), Some(r)) => (self.interpolated(*l, best, *r), None),
+                    (None, _) if best.code == c.code_min => (best.code, Some(TravelEnd::Low)),
+                    (_, None) if best.code == c.code_max => (best.code, Some(TravelEnd::High)),
+                    // Peak at the window's edge, inside travel: not bracketed.
+                    _ if hint => return self.begin_full(),
+                    _ => (best.code, None),
+                };
+                self.park_code = code;
+                self.settle(Target {
+                    code,
+                    best_metric: best.metric,
+                    travel_end,
+                    from_hint: hint,
+                })
+            }
+        }
+    }
+
+    /// Interpolated code between equally spaced neighbours; the centre's code if
+    /// the spacing is unequal or the fit fails.
+    fn interpolated(&self, l: Sample, c: Sample, r: Sample) -> i32 {
+        let spacing = c.code - l.code;
+        if r.code - c.code != spacing {
+            return c.code;
+        }
+        let offset = interpolate_peak::<S>(l.metric, c.metric, r.metric, self.config.fit)
+            .and_then(|d| unit_to_q16(d.add(S::HALF)?, Quantity::Value));
+        match offset {
+            Ok(q) => {
+                // (q − 2^15) · spacing / 2^16, rounded to nearest.
+                let v = (i64::from(q) - 32_768) * i64::from(spacing);
+                let d = (v + v.signum() * 32_768) / 65_536;
+                let code = i64::from(c.code) + d;
+                i32::try_from(code)
+                    .unwrap_or(c.code)
+                    .clamp(self.config.code_min, self.config.code_max)
+            }
+            Err(_) => c.code,
+        }
+    }
+
+    fn settle(&mut self, target: Target) -> Step {
+        let pre = target
+            .code
+            .saturating_sub(self.config.backlash_margin)
+            .max(self.config.code_min);
+        if pre < target.code {
+            self.phase = Phase::Settle(target);
+            Step::Move(pre)
+        } else {
+            self.phase = Phase::Confirm(target);
+            Step::Move(target.code)
+        }
+    }
+}

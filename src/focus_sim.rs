@@ -1,0 +1,431 @@
+//! A forward model of a camera module for trying autofocus before hardware
+//! exists: a textured subject at a distance, a lens moved by a linear actuator
+//! with backlash, the geometric blur circle on the sensor, and the focus metric
+//! the pipeline would measure, with noise from a seeded generator of our own.
+//!
+//! The metric model is analytic: a subject of contrast `k` imaged with a blur
+//! circle `b` pixels across gives
+//!
+//! `m = k² / (1 + (b / b½)²) + floor`, times `(1 + σ·g)`, `g` ≈ N(0, 1),
+//!
+//! where `b½` is the blur at which the metric halves. It stands in for running
+//! [`tenengrad`] on a blurred image every frame
+//! (too slow for thousands of simulated searches); [`textured_target_metric`]
+//! does the slow thing on a small synthetic texture, and the tests check the
+//! model against it.
+//!
+//! Units: subject vergence in dioptres (1/m; 0 is infinity), lengths in mm.
+//! The metric is returned in 2^-16 units of the model's scale (a sharp subject
+//! of contrast 1 gives about 65 536).
+//!
+//! ```
+//! use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
+//! let lens = LensModel::<f64>::phone_module();
+//! let scene = Scene { vergence_dpt: 2.0, contrast: 0.8 }; // 50 cm away
+//! let target = lens.code_for_scene(&scene).unwrap();
+//! let mut cam = SimCamera::new(lens, scene, 0, 7).unwrap();
+//! cam.command(target).unwrap();
+//! assert!(cam.focus_error_dof().unwrap() < 1.0);
+//! ```
+
+use crate::error::{Error, Quantity};
+use crate::focus_metric::{Roi, tenengrad};
+use crate::focus_search::{FocusSearch, PhaseHint, Step, split_floor, unit_to_q16};
+use crate::lit;
+use crate::scalar::Scalar;
+
+const SIM: Quantity = Quantity::SimulationSetting;
+
+/// Seeded pseudo-random generator (SplitMix64), integer only.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SimRng {
+    state: u64,
+}
+
+impl SimRng {
+    /// A generator from a seed; the same seed gives the same sequence.
+    pub fn new(seed: u64) -> Self {
+        Self { state: seed }
+    }
+
+    /// The next 64 random bits.
+    pub fn next_u64(&mut self) -> u64 {
+        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.state;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    }
+
+    /// Uniform integer in `[0, n)` (0 when `n` is 0).
+    pub fn below(&mut self, n: u32) -> u32 {
+        (((self.next_u64() >> 32) * u64::from(n)) >> 32) as u32
+    }
+
+    /// Approximately standard normal, in 2^-16 units: the sum of twelve uniform
+    /// values minus six (Irwin–Hall), within ±6.
+    pub fn normal_q16(&mut self) -> i32 {
+        let mut sum: i64 = 0;
+        for _ in 0..3 {
+            let r = self.next_u64();
+            for k in 0..4 {
+                sum += ((r >> (16 * k)) & 0xFFFF) as i64;
+            }
+        }
+        (sum - 6 * 65_536) as i32
+    }
+}
+
+/// The camera module: lens, actuator and sensor, plus the metric model.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct LensModel<S> {
+    /// Focal length, mm.
+    pub focal_length_mm: S,
+    /// f-number.
+    pub f_number: S,
+    /// Sensor pixel pitch, mm.
+    pub pixel_pitch_mm: S,
+    /// Acceptable circle of confusion, mm; sets the depth of focus.
+    pub circle_of_confusion_mm: S,
+    /// Lens extension (beyond the infinity position) at code 0, mm; negative
+    /// when the travel reaches past infinity.
+    pub extension_at_code_zero_mm: S,
+    /// Extension per actuator code, mm (the linear actuator model).
+    pub extension_per_code_mm: S,
+    /// Highest actuator code (the lowest is 0).
+    pub code_max: i32,
+    /// Actuator backlash (play), codes.
+    pub backlash_codes: i32,
+    /// Blur-circle diameter, pixels, at which the metric halves.
+    pub half_metric_blur_px: S,
+    /// Relative metric noise (standard deviation).
+    pub metric_noise: S,
+    /// Metric of a featureless scene (sensor noise), in units of a sharp
+    /// full-contrast subject.
+    pub metric_floor: S,
+}
+
+impl<S: Scalar> LensModel<S> {
+    /// A phone-class module (invented for demos and tests): 4 mm f/2, 1.12 µm
+    /// pixels, circle of confusion 2 pixels, 1024 codes of 0.25 µm from 10 µm
+    /// past infinity (focus down to about 7 cm), 6 codes of backlash, 5 %
+    /// metric noise, floor 0.001.
+    pub fn phone_module() -> Self {
+        Self {
+            focal_length_mm: lit!(S, 4.0),
+            f_number: lit!(S, 2.0),
+            pixel_pitch_mm: lit!(S, 0.00112),
+            circle_of_confusion_mm: lit!(S, 0.00224),
+            extension_at_code_zero_mm: lit!(S, -0.010),
+            extension_per_code_mm: lit!(S, 0.00025),
+            code_max: 1023,
+            backlash_codes: 6,
+            half_metric_blur_px: lit!(S, 1.6),
+            metric_noise: lit!(S, 0.05),
+            metric_floor: lit!(S, 0.001),
+        }
+    }
+
+    fn check(&self) -> Result<(), Error> {
+        let positive = |x: S, hi: S| {
+            x.check_range(SIM, S::ZERO, hi).and_then(|x| {
+                if x > S::ZERO {
+                    Ok(x)
+                } else {
+                    Err(Error::OutOfRange(SIM))
+                }
+            })
+        };
+        positive(self.focal_length_mm, lit!(S, 100.0))?;
+        positive(self.f_number, lit!(S, 64.0))?;
+        positive(self.pixel_pitch_mm, lit!(S, 0.1))?;
+        positive(self.circle_of_confusion_mm, lit!(S, 1.0))?;
+        positive(self.extension_per_code_mm, lit!(S, 0.1))?;
+        positive(self.half_metric_blur_px, lit!(S, 100.0))?;
+        self.extension_at_code_zero_mm
+            .check_range(SIM, lit!(S, -10.0), lit!(S, 10.0))?;
+        self.metric_noise.check_range(SIM, S::ZERO, lit!(S, 0.3))?;
+        self.metric_floor.check_range(SIM, S::ZERO, lit!(S, 0.5))?;
+        if !(1..=1 << 20).contains(&self.code_max)
+            || !(0..=self.code_max).contains(&self.backlash_codes)
+        {
+            return Err(Error::OutOfRange(SIM));
+        }
+        Ok(())
+    }
+
+    /// Extension per 4096 codes, mm: codes are handled in units of 4096 so that
+    /// an `I8F24` (range ±128) holds them.
+    fn extension_per_4096_codes(&self) -> Result<S, Error> {
+        self.extension_per_code_mm
+            .mul(lit!(S, 64.0))?
+            .mul(lit!(S, 64.0))
+    }
+
+    /// Lens extension at an actuator code, mm (linear actuator).
+    fn extension_at(&self, code: i32) -> Result<S, Error> {
+        S::from_ratio(code, 4096)?
+            .mul(self.extension_per_4096_codes()?)?
+            .add(self.extension_at_code_zero_mm)
+    }
+
+    /// The nearest actuator code for an extension, mm (may lie off travel).
+    fn code_at(&self, extension_mm: S) -> Result<i32, Error> {
+        let per_64 = extension_mm
+            .sub(self.extension_at_code_zero_mm)?
+            .div(self.extension_per_4096_codes()?)?
+            .mul(lit!(S, 64.0))?;
+        let (sixty_fourths, rest) = split_floor(per_64)?;
+        sixty_fourths
+            .checked_mul(64)
+            .and_then(|c| c.checked_add(rest.mul(lit!(S, 64.0)).ok()?.round_to_i32().ok()?))
+            .ok_or(Error::Overflow)
+    }
+
+    /// The code whose extension focuses the scene (nearest code, may lie off
+    /// travel).
+    pub fn code_for_scene(&self, scene: &Scene<S>) -> Result<i32, Error> {
+        self.check()?;
+        scene.check()?;
+        self.code_at(extension_for_vergence(
+            self.focal_length_mm,
+            scene.vergence_dpt,
+        )?)
+    }
+
+    /// The code focused at the hyperfocal distance, where the lens extension
+    /// is `N·c` (f-number times circle of confusion).
+    pub fn hyperfocal_code(&self) -> Result<i32, Error> {
+        self.check()?;
+        self.code_at(self.f_number.mul(self.circle_of_confusion_mm)?)
+    }
+
+    /// Blur-circle diameter on the sensor, pixels, with the lens at `code`.
+    pub fn blur_px(&self, scene: &Scene<S>, code: i32) -> Result<S, Error> {
+        self.check()?;
+        scene.check()?;
+        let e_subject = extension_for_vergence(self.focal_length_mm, scene.vergence_dpt)?;
+        blur_circle_mm(
+            self.focal_length_mm,
+            self.f_number,
+            self.extension_at(code)?,
+            e_subject,
+        )?
+        .div(self.pixel_pitch_mm)
+    }
+
+    /// The noise-free metric model, in units of a sharp full-contrast subject.
+    pub fn metric_model(&self, scene: &Scene<S>, code: i32) -> Result<S, Error> {
+        let r = self.blur_px(scene, code)?.div(self.half_metric_blur_px)?;
+        // 1 / (1 + r²), written so that r² never overflows a narrow type.
+        let sharpness = if r <= S::ONE {
+            S::ONE.div(S::ONE.add(r.square()?)?)?
+        } else {
+            let t2 = S::ONE.div(r)?.square()?;
+            t2.div(t2.add(S::ONE)?)?
+        };
+        scene
+            .contrast
+            .square()?
+            .mul(sharpness)?
+            .add(self.metric_floor)
+    }
+}
+
+/// Lens extension that focuses a subject at vergence `v` (dioptres), mm:
+/// the thin-lens `f² / (u − f)` with `u = 1000 / v` mm, written as
+/// `f²·v·10⁻³ / (1 − f·v·10⁻³)` so that infinity (v = 0) is exact and no
+/// intermediate exceeds the range of `I8F24`.
+fn extension_for_vergence<S: Scalar>(f_mm: S, v_dpt: S) -> Result<S, Error> {
+    let fv = f_mm.mul(v_dpt)?.mul(lit!(S, 0.001))?;
+    if fv >= S::ONE {
+        return Err(Error::OutOfRange(SIM));
+    }
+    f_mm.mul(fv)?.div(S::ONE.sub(fv)?)
+}
+
+/// Geometric blur-circle diameter, mm, on a sensor at extension `e` when the
+/// subject is imaged at extension `e_subject`: aperture `f/N` times
+/// `|e − e_subject| / (f + e_subject)`.
+fn blur_circle_mm<S: Scalar>(f_mm: S, n: S, e: S, e_subject: S) -> Result<S, Error> {
+    f_mm.div(n)?
+        .mul(e.sub(e_subject)?.abs()?)?
+        .div(f_mm.add(e_subject)?)
+}
+
+/// A subject: how far (as vergence) and how contrasted.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Scene<S> {
+    /// Subject vergence, dioptres (1 / distance in m), 0 (infinity) to 10 (10 cm).
+    pub vergence_dpt: S,
+    /// Texture contrast, 0 (flat) to 1.
+    pub contrast: S,
+}
+
+impl<S: Scalar> Scene<S> {
+    fn check(&self) -> Result<(), Error> {
+        self.vergence_dpt.check_range(SIM, S::ZERO, lit!(S, 10.0))?;
+        self.contrast.check_range(SIM, S::ZERO, S::ONE)?;
+        Ok(())
+    }
+}
+
+/// The simulated camera: where the lens is and what each frame measures.
+#[derive(Clone, Copy, Debug)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SimCamera<S> {
+    lens: LensModel<S>,
+    scene: Scene<S>,
+    position: i32,
+    rng: SimRng,
+}
+
+impl<S: Scalar> SimCamera<S> {
+    /// A camera with the lens at `start_code`, noise seeded by `seed`.
+    pub fn new(
+        lens: LensModel<S>,
+        scene: Scene<S>,
+        start_code: i32,
+        seed: u64,
+    ) -> Result<Self, Error> {
+        lens.check()?;
+        scene.check()?;
+        if !(0..=lens.code_max).contains(&start_code) {
+            return Err(Error::OutOfRange(Quantity::ActuatorCode));
+        }
+        Ok(Self {
+            lens,
+            scene,
+            position: start_code,
+            rng: SimRng::new(seed),
+        })
+    }
+
+    /// Commands the actuator. The lens follows with backlash: it moves only once
+    /// the command leaves the play band, and then trails the command by half the
+    /// play on the side it came from.
+    pub fn command(&mut self, code: i32) -> Result<(), Error> {
+        if !(0..=self.lens.code_max).contains(&code) {
+            return Err(Error::OutOfRange(Quantity::ActuatorCode));
+        }
+        let half = self.lens.backlash_codes / 2;
+        if code - self.position > half {
+            self.position = code - half;
+        } else if self.position - code > half {
+            self.position = code + half;
+        }
+        Ok(())
+    }
+
+    /// Where the lens really is, in codes.
+    pub fn lens_code(&self) -> i32 {
+        self.position
+    }
+
+    /// The focus metric of one frame at the current lens position, with noise,
+    /// in 2^-16 units.
+    pub fn frame_metric(&mut self) -> Result<u64, Error> {
+        let clean = self.lens.metric_model(&self.scene, self.position)?;
+        let g = S::from_ratio(self.rng.normal_q16(), 65_536)?;
+        let noisy = clean.mul(self.lens.metric_noise.mul_add(g, S::ONE)?)?;
+        let m = noisy.max(S::ZERO).min(lit!(S, 1.99));
+        unit_to_q16(m, SIM).map(u64::from)
+    }
+
+    /// Defocus at the current position in depth-of-focus units: blur circle
+    /// over circle of confusion (≤ 1 is within the depth of focus).
+    pub fn focus_error_dof(&self) -> Result<S, Error> {
+        self.lens
+            .blur_px(&self.scene, self.position)?
+            .mul(self.lens.pixel_pitch_mm)?
+            .div(self.lens.circle_of_confusion_mm)
+    }
+}
+
+/// Runs a search against a simulated camera until it finishes, commanding each
+/// move and feeding each frame's metric; the lens ends where the search left
+/// it. With a hint, runs the hybrid search.
+pub fn run_search<S: Scalar>(
+    camera: &mut SimCamera<S>,
+    search: &mut FocusSearch<S>,
+    hint: Option<PhaseHint<S>>,
+) -> Result<Step, Error> {
+    let mut step = match hint {
+        Some(h) => search.start_with_hint(h)?,
+        None => search.start(),
+    };
+    // The search ends within its budget; the bound is a second guard.
+    for _ in 0..=u32::from(search.config().frame_budget) {
+        match step {
+            Step::Move(code) => {
+                camera.command(code)?;
+                step = search.feed(camera.frame_metric()?);
+            }
+            Step::Done(_) => return Ok(step),
+            Step::Failed(f) => {
+                camera.command(f.park_code)?;
+                return Ok(step);
+            }
+        }
+    }
+    Ok(step)
+}
+
+/// Side of the synthetic texture, pixels.
+const TEXTURE_SIDE: usize = 48;
+/// Largest blur diameter [`textured_target_metric`] accepts, pixels.
+pub const TEXTURE_BLUR_MAX_PX: u32 = 12;
+/// Side of the ROI measured on the blurred texture, pixels.
+const TEXTURE_ROI: usize = TEXTURE_SIDE - TEXTURE_BLUR_MAX_PX as usize - 2;
+
+/// Tenengrad (threshold 0, Q8) of a synthetic 8-bit texture (random 2 × 2
+/// blocks, levels 0–255, from `seed`) blurred by a uniform disk of
+/// `blur_diameter_px` pixels (integer average), measured on a central ROI.
+///
+/// The slow reference that the analytic [`LensModel::metric_model`] is
+/// validated against. [`Error::OutOfRange`] above [`TEXTURE_BLUR_MAX_PX`].
+pub fn textured_target_metric(blur_diameter_px: u32, seed: u64) -> Result<u64, Error> {
+    if blur_diameter_px > TEXTURE_BLUR_MAX_PX {
+        return Err(Error::OutOfRange(SIM));
+    }
+    let mut rng = SimRng::new(seed);
+    let mut texture = [[0u8; TEXTURE_SIDE]; TEXTURE_SIDE];
+    for y in (0..TEXTURE_SIDE).step_by(2) {
+        for x in (0..TEXTURE_SIDE).step_by(2) {
+            let level = rng.below(256) as u8;
+            for row in texture.iter_mut().skip(y).take(2) {
+                for p in row.iter_mut().skip(x).take(2) {
+                    *p = level;
+                }
+            }
+        }
+    }
+    let d = blur_diameter_px as i32;
+    let r = d / 2;
+    let margin = (TEXTURE_SIDE - TEXTURE_ROI) / 2;
+    let mut blurred = [0u8; TEXTURE_ROI * TEXTURE_ROI];
+    for (i, out) in blurred.iter_mut().enumerate() {
+        let cx = (margin + i % TEXTURE_ROI) as i32;
+        let cy = (margin + i / TEXTURE_ROI) as i32;
+        let (mut sum, mut count) = (0u32, 0u32);
+        for dy in -r..=r {
+            for dx in -r..=r {
+                if 4 * (dx * dx + dy * dy) > d * d {
+                    continue;
+                }
+                let level = texture
+                    .get((cy + dy) as usize)
+                    .and_then(|row| row.get((cx + dx) as usize))
+                    .copied()
+                    .unwrap_or(0);
+                sum += u32::from(level);
+                count += 1;
+            }
+        }
+        *out = ((sum + count / 2) / count.max(1)) as u8;
+    }
+    tenengrad(&Roi::whole(&blurred, TEXTURE_ROI, TEXTURE_ROI)?, 0)
+}
