@@ -25,6 +25,18 @@ pub enum Quantity {
     Wavelength,
     /// A temperature.
     Temperature,
+    /// A length: focal length, subject or image distance, lens gap, pixel pitch.
+    Length,
+    /// An optical power (dioptres, or reciprocal length units).
+    OpticalPower,
+    /// A lens f-number.
+    FNumber,
+    /// A focus actuator code (DAC value), or an actuator setting in codes.
+    ActuatorCode,
+    /// A phase-detect disparity.
+    Disparity,
+    /// A confidence figure (0 to 1).
+    Confidence,
 }
 
 impl fmt::Display for Quantity {
@@ -37,6 +49,12 @@ impl fmt::Display for Quantity {
             Quantity::Cosine => "cosine",
             Quantity::Wavelength => "wavelength",
             Quantity::Temperature => "temperature",
+            Quantity::Length => "length",
+            Quantity::OpticalPower => "optical power",
+            Quantity::FNumber => "f-number",
+            Quantity::ActuatorCode => "actuator code",
+            Quantity::Disparity => "phase disparity",
+            Quantity::Confidence => "confidence",
         })
     }
 }
@@ -62,6 +80,12 @@ pub enum Error {
     /// The sample's index is at or above the prism's: there is no critical angle,
     /// so a critical-angle instrument cannot measure it.
     IndexAtOrAbovePrism,
+    /// The subject is closer than the focus actuator's calibrated macro limit: the
+    /// lens cannot reach it.
+    CloserThanMacro,
+    /// A phase-detect (or other) estimate's confidence is below the gate: do not
+    /// act on it; fall back to a contrast search.
+    LowConfidence,
 }
 
 impl fmt::Display for Error {
@@ -78,6 +102,10 @@ impl fmt::Display for Error {
             Error::IndexAtOrAbovePrism => f.write_str(
                 "sample index at or above the prism index: no critical angle, out of range",
             ),
+            Error::CloserThanMacro => {
+                f.write_str("subject closer than the actuator's macro limit")
+            }
+            Error::LowConfidence => f.write_str("estimate confidence below the gate"),
         }
     }
 }

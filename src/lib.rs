@@ -31,7 +31,12 @@
 extern crate std;
 
 pub mod error;
+pub mod actuator;
+pub mod af_assist;
+pub mod actuator_driver;
 pub mod fresnel;
+pub mod focus;
+pub mod lens;
 pub mod medium;
 pub mod refraction;
 pub mod refractometer;
