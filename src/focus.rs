@@ -276,15 +276,15 @@ pub fn plan_focus_sweep<S: Scalar>(
     }
     let span = e_near.sub(e_far)?;
     let ratio = span.div(step)?;
-    if ratio >= S::from_i32(i32::from(MAX_SWEEP_STEPS))? {
-        return Err(Error::Overflow);
-    }
     let mut intervals = ratio.round_to_i32()?;
     if S::from_i32(intervals)? < ratio {
         intervals += 1;
     }
     let intervals = intervals.max(1);
     let steps = u16::try_from(intervals + 1).map_err(|_| Error::Overflow)?;
+    if steps > MAX_SWEEP_STEPS {
+        return Err(Error::Overflow);
+    }
     Ok(FocusSweepPlan {
         start_extension: e_far,
         spacing: span.div(S::from_i32(intervals)?)?,
