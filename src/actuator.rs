@@ -118,7 +118,7 @@ struct Node<S> {
 /// )
 /// .unwrap();
 /// let nominal = OperatingConditions::nominal();
-/// // A subject at 20 cm needs about 0.49 of the travel: code 495.
+/// // A subject at 20 cm needs 0.4898 of the 400-code travel: code 495.9, so 496.
 /// let code = model.code_for_distance(SubjectDistance::Finite(m(0.2)), &nominal).unwrap();
 /// assert_eq!(code, 496);
 /// ```
@@ -171,12 +171,12 @@ fn check_code(code: u16) -> Result<u16, Error> {
     }
 }
 
-/// Checks an offset in codes: finite, within ±[`MAX_CODE`].
+/// Checks a posture offset in codes: finite, within ±100 (fits every type).
 fn check_code_offset<S: Scalar>(x: S) -> Result<S, Error> {
     x.check_range(
         Quantity::ActuatorCode,
-        crate::lit!(S, -4095.0),
-        crate::lit!(S, 4095.0),
+        crate::lit!(S, -100.0),
+        crate::lit!(S, 100.0),
     )
 }
 
@@ -280,7 +280,7 @@ impl<S: Scalar> ActuatorModel<S> {
 
     /// Sets the posture offsets: extra code needed for the same focus when the
     /// camera faces up, and when it faces down (signed; usually positive facing up,
-    /// where the lens sags toward the sensor).
+    /// where the lens sags toward the sensor; −100 to 100).
     pub fn with_posture_offsets(mut self, facing_up: S, facing_down: S) -> Result<Self, Error> {
         self.facing_up_codes = check_code_offset(facing_up)?;
         self.facing_down_codes = check_code_offset(facing_down)?;
@@ -305,7 +305,10 @@ impl<S: Scalar> ActuatorModel<S> {
     /// Nearest subject the model will focus: the closest calibration point (the
     /// macro limit).
     pub fn macro_limit(&self) -> Result<SubjectDistance<S>, Error> {
-        let w = self.table.last().ok_or(Error::OutOfRange(Quantity::Value))?;
+        let w = self
+            .table
+            .last()
+            .ok_or(Error::OutOfRange(Quantity::Value))?;
         SubjectDistance::from_extension_ratio(self.focal_length, w.ratio)
     }
 

@@ -66,7 +66,11 @@ impl BusLayout {
     fn frame(&self, code: u16) -> ([u8; 3], usize) {
         let word = (u32::from(code) << self.shift) | u32::from(self.fixed_bits);
         let [_, _, hi, lo] = word.to_be_bytes();
-        let data: &[u8] = if self.data_bytes == 2 { &[hi, lo] } else { &[lo] };
+        let data: &[u8] = if self.data_bytes == 2 {
+            &[hi, lo]
+        } else {
+            &[lo]
+        };
         let mut buf = [0u8; 3];
         let mut n = 0;
         for b in self.register.iter().chain(data.iter()) {

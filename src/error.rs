@@ -102,9 +102,7 @@ impl fmt::Display for Error {
             Error::IndexAtOrAbovePrism => f.write_str(
                 "sample index at or above the prism index: no critical angle, out of range",
             ),
-            Error::CloserThanMacro => {
-                f.write_str("subject closer than the actuator's macro limit")
-            }
+            Error::CloserThanMacro => f.write_str("subject closer than the actuator's macro limit"),
             Error::LowConfidence => f.write_str("estimate confidence below the gate"),
         }
     }

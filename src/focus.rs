@@ -92,7 +92,11 @@ pub fn subject_distance_from_extension<S: Scalar>(
 
 /// Checks an f-number: finite, 0.5 to 128.
 fn check_f_number<S: Scalar>(n: S) -> Result<S, Error> {
-    n.check_range(Quantity::FNumber, crate::lit!(S, 0.5), crate::lit!(S, 127.0))
+    n.check_range(
+        Quantity::FNumber,
+        crate::lit!(S, 0.5),
+        crate::lit!(S, 127.0),
+    )
 }
 
 /// Hyperfocal distance `H = f²/(N·c) + f`: focused there, everything from `H/2` to

@@ -285,9 +285,7 @@ pub fn near_point_addition<S: Scalar>(
     if near <= d || work <= d {
         return Err(Error::OutOfRange(Quantity::Length));
     }
-    S::ONE
-        .div(work.sub(d)?)?
-        .sub(S::ONE.div(near.sub(d)?)?)
+    S::ONE.div(work.sub(d)?)?.sub(S::ONE.div(near.sub(d)?)?)
 }
 
 /// Power (dioptres) a lens of `power` worn at `old_vertex` must have at

@@ -30,12 +30,12 @@
 #[cfg(feature = "std")]
 extern crate std;
 
-pub mod error;
 pub mod actuator;
-pub mod af_assist;
 pub mod actuator_driver;
-pub mod fresnel;
+pub mod af_assist;
+pub mod error;
 pub mod focus;
+pub mod fresnel;
 pub mod lens;
 pub mod medium;
 pub mod refraction;

@@ -42,21 +42,46 @@ fn hyperfocal_published_example_50mm_f8() {
 fn check_depth_of_field<S: Scalar>(rel: f64, phone_rel: f64) {
     // mpmath: H as above; near = s*(H-f)/(H+s-2*f), far = s*(H-f)/(H-s), s = 5 m
     let d = focus::depth_of_field(s::<S>(0.05), s(8.0), s(0.00003), s(5.0)).unwrap();
-    close(d.near.to_f64(), 3.3893709327548806941431670281995661605206073752711, rel, "near");
+    close(
+        d.near.to_f64(),
+        3.3893709327548806941431670281995661605206073752711,
+        rel,
+        "near",
+    );
     let SubjectDistance::Finite(far) = d.far else {
         panic!("far limit should be finite below H")
     };
-    close(far.to_f64(), 9.5274390243902439024390243902439024390243902439024, rel, "far");
+    close(
+        far.to_f64(),
+        9.5274390243902439024390243902439024390243902439024,
+        rel,
+        "far",
+    );
     // Phone module: f = 4 mm, f/2, c = 2.24 µm, focused at 0.5 m.
     // mpmath: f=mpf('0.004'); N=2; c=mpf('2.24e-6'); H=f**2/(N*c)+f; same near/far
     let d = focus::depth_of_field(s::<S>(0.004), s(2.0), s(2.24e-6), s(0.5)).unwrap();
-    close(d.near.to_f64(), 0.4390278168024726046642315257094689519527957291374, phone_rel, "phone near");
+    close(
+        d.near.to_f64(),
+        0.4390278168024726046642315257094689519527957291374,
+        phone_rel,
+        "phone near",
+    );
     let SubjectDistance::Finite(far) = d.far else {
         panic!()
     };
-    close(far.to_f64(), 0.58063916759568933481976960237829803047194351542178, phone_rel, "phone far");
+    close(
+        far.to_f64(),
+        0.58063916759568933481976960237829803047194351542178,
+        phone_rel,
+        "phone far",
+    );
     let h = focus::hyperfocal_distance(s::<S>(0.004), s(2.0), s(2.24e-6)).unwrap();
-    close(h.to_f64(), 3.5754285714285714285714285714285714285714285714286, phone_rel, "phone H");
+    close(
+        h.to_f64(),
+        3.5754285714285714285714285714285714285714285714286,
+        phone_rel,
+        "phone H",
+    );
     // At and beyond the hyperfocal distance the far limit is infinity, and the near
     // limit at H is H/2. // common practice
     let d = focus::depth_of_field(s::<S>(0.004), s(2.0), s(2.24e-6), h).unwrap();
@@ -83,8 +108,14 @@ fn check_extension<S: Scalar>(abs: f64, round_trip_rel: f64) {
     // mpmath: f=mpf('0.004'); f**2/(mpf(u)-f)
     for (u, want) in [
         (0.1, 0.00016666666666666666666666666666666666666666666666667),
-        (0.3, 0.000054054054054054054054054054054054054054054054054054),
-        (1.5, 0.000010695187165775401069518716577540106951871657754011),
+        (
+            0.3,
+            0.000054054054054054054054054054054054054054054054054054,
+        ),
+        (
+            1.5,
+            0.000010695187165775401069518716577540106951871657754011,
+        ),
     ] {
         let e = focus::lens_extension(s::<S>(0.004), SubjectDistance::Finite(s(u))).unwrap();
         assert!((e.to_f64() - want).abs() <= abs, "u {u}: {e:?} vs {want}");
@@ -92,7 +123,10 @@ fn check_extension<S: Scalar>(abs: f64, round_trip_rel: f64) {
         let SubjectDistance::Finite(b) = back else {
             panic!()
         };
-        assert!((b.to_f64() - u).abs() <= round_trip_rel * u, "round trip {u}: {b:?}");
+        assert!(
+            (b.to_f64() - u).abs() <= round_trip_rel * u,
+            "round trip {u}: {b:?}"
+        );
     }
     let e = focus::lens_extension(s::<S>(0.004), SubjectDistance::Finite(s(0.1))).unwrap();
     assert!((e.to_f64() * 1000.0 - 0.17).abs() < 0.005); // common practice: ~0.17 mm
@@ -110,9 +144,13 @@ fn lens_extension_against_mpmath() {
 #[test]
 fn depth_of_focus_against_mpmath() {
     // mpmath: 2*2*mpf('2.24e-6')*(1+f/(mpf('0.1')-f)), f = mpf('0.004')
-    let t: f64 =
-        focus::depth_of_focus(0.004, 2.0, 2.24e-6, SubjectDistance::Finite(0.1)).unwrap();
-    close(t, 0.0000093333333333333333333333333333333333333333333333333, 1e-14, "f64");
+    let t: f64 = focus::depth_of_focus(0.004, 2.0, 2.24e-6, SubjectDistance::Finite(0.1)).unwrap();
+    close(
+        t,
+        0.0000093333333333333333333333333333333333333333333333333,
+        1e-14,
+        "f64",
+    );
 }
 
 #[test]
@@ -122,10 +160,20 @@ fn effective_power_published_examples() {
     // // from memory (the standard contact-lens conversion example)
     // mpmath: mpf(-10)/(1-mpf('0.012')*-10), mpf(10)/(1-mpf('0.012')*10)
     let minus: f64 = lens::power_at_vertex(-10.0, 0.012, 0.0).unwrap();
-    close(minus, -8.9285714285714285714285714285714285714285714285714, 1e-14, "-10");
+    close(
+        minus,
+        -8.9285714285714285714285714285714285714285714285714,
+        1e-14,
+        "-10",
+    );
     assert!((minus - -8.93).abs() < 0.005);
     let plus: f64 = lens::power_at_vertex(10.0, 0.012, 0.0).unwrap();
-    close(plus, 11.363636363636363636363636363636363636363636363636, 1e-14, "+10");
+    close(
+        plus,
+        11.363636363636363636363636363636363636363636363636,
+        1e-14,
+        "+10",
+    );
     assert!((plus - 11.36).abs() < 0.005);
     let plus: I8F24 = lens::power_at_vertex(s(10.0), s(0.012), s(0.0)).unwrap();
     close(plus.to_f64(), 11.363636363636363636, 1e-5, "I8F24 +10");
@@ -142,7 +190,12 @@ fn far_point_published_examples() {
     let at_eye: f64 = lens::far_point_correction(0.5, 0.0).unwrap();
     close(at_eye, -2.0, 1e-15, "at eye");
     let spectacle: f64 = lens::far_point_correction(0.5, 0.012).unwrap();
-    close(spectacle, -2.049180327868852459016393442622950819672131147541, 1e-14, "spectacle");
+    close(
+        spectacle,
+        -2.049180327868852459016393442622950819672131147541,
+        1e-14,
+        "spectacle",
+    );
     // Hyperope, far point 50 cm behind the eye: mpmath 1/(mpf('0.012')+mpf('0.5')).
     let hyper: I32F32 = lens::far_point_correction(s(-0.5), s(0.012)).unwrap();
     close(hyper.to_f64(), 1.953125, 1e-8, "hyperope");
@@ -159,10 +212,30 @@ fn far_point_published_examples() {
 fn two_lens_systems_against_mpmath() {
     // mpmath: p1=p2=1/mpf(100); d=50; P=p1+p2-d*p1*p2; 1/P, (1-d*p1)/P, d*p2/P, -d*p1/P
     let sys = lens::two_lens_system(0.01f64, 0.01, 50.0).unwrap();
-    close(sys.effective_focal_length, 66.666666666666666666666666666666666666666666666667, 1e-14, "efl");
-    close(sys.back_focal_distance, 33.333333333333333333333333333333333333333333333333, 1e-14, "bfd");
-    close(sys.front_principal_plane, 33.333333333333333333333333333333333333333333333333, 1e-14, "H");
-    close(sys.rear_principal_plane, -33.333333333333333333333333333333333333333333333333, 1e-14, "H'");
+    close(
+        sys.effective_focal_length,
+        66.666666666666666666666666666666666666666666666667,
+        1e-14,
+        "efl",
+    );
+    close(
+        sys.back_focal_distance,
+        33.333333333333333333333333333333333333333333333333,
+        1e-14,
+        "bfd",
+    );
+    close(
+        sys.front_principal_plane,
+        33.333333333333333333333333333333333333333333333333,
+        1e-14,
+        "H",
+    );
+    close(
+        sys.rear_principal_plane,
+        -33.333333333333333333333333333333333333333333333333,
+        1e-14,
+        "H'",
+    );
     // Telephoto pair f1 = 50, f2 = −50, 25 apart: EFL 100 in a 75-long package;
     // mpmath, same expressions: 100, 50, FFD 150, H −50, H' −50.
     let sys = lens::two_lens_system(s::<I32F32>(0.02), s(-0.02), s(25.0)).unwrap();
@@ -185,7 +258,12 @@ fn liquid_lens_matches_two_lens_system() {
         let ll: lens::LiquidLensFocus<f64> = lens::liquid_lens_focus(0.004, dpt, 0.0015).unwrap();
         let sys = lens::two_lens_system(dpt, 250.0, 0.0015).unwrap();
         close(ll.focal_length, sys.effective_focal_length, 1e-12, "efl");
-        close(ll.back_focal_distance, sys.back_focal_distance, 1e-12, "bfd");
+        close(
+            ll.back_focal_distance,
+            sys.back_focal_distance,
+            1e-12,
+            "bfd",
+        );
     }
     // Liquid lens at +D cancels a subject at 1/D: imaged at the fixed lens's focus.
     let d: f64 = lens::liquid_power_for_subject(0.1).unwrap();
@@ -199,7 +277,12 @@ fn lensmaker_biconvex_bk7() {
     // N-BK7 nd = 1.5168 // from memory (glass catalogue value)
     // mpmath: 1/((mpf('1.5168')-1)*(2/mpf(50)))
     let p: f64 = lens::lensmaker_power(1.5168, 1.0, 0.02, -0.02).unwrap();
-    close(1.0 / p, 48.374613003095975232198142414860681114551083591331, 1e-13, "f");
+    close(
+        1.0 / p,
+        48.374613003095975232198142414860681114551083591331,
+        1e-13,
+        "f",
+    );
     // Same lens in water (1.333): much weaker. // common practice
     let pw: f64 = lens::lensmaker_power(1.5168, 1.333, 0.02, -0.02).unwrap();
     assert!(pw < p / 2.0);
@@ -217,15 +300,18 @@ fn gaussian_and_newtonian_agree() {
     }
     // Virtual image inside f; image at infinity at f.
     assert!(lens::image_distance(4.0f64, 2.0).unwrap() < 0.0);
-    assert_eq!(lens::image_distance(4.0f64, 4.0), Err(Error::DivisionByZero));
+    assert_eq!(
+        lens::image_distance(4.0f64, 4.0),
+        Err(Error::DivisionByZero)
+    );
 }
 
 #[test]
 fn circle_of_confusion_and_sweep_plan() {
     let c: f64 = focus::circle_of_confusion_from_pitch(1.12e-6, 2.0).unwrap();
     close(c, 2.24e-6, 1e-15, "coc");
-    let plan = focus::plan_focus_sweep(0.004f64, 2.0, c, 0.1, SubjectDistance::Infinity, 0.25)
-        .unwrap();
+    let plan =
+        focus::plan_focus_sweep(0.004f64, 2.0, c, 0.1, SubjectDistance::Infinity, 0.25).unwrap();
     // Span 166.67 µm, step 0.75 × 8.96 µm = 6.72 µm: 24.8 → 25 intervals.
     assert_eq!(plan.steps, 26);
     let last = plan.extension_at(plan.steps - 1).unwrap();
