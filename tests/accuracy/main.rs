@@ -5,6 +5,7 @@
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
 mod harness;
+mod lens;
 mod refraction;
 mod scalar;
 
@@ -23,6 +24,20 @@ fn all_rows() -> Vec<Row> {
         row::<refraction::IndexFromCriticalAngle>(),
         row::<refraction::RefractionAngle>(),
         row::<refraction::FresnelUnpolarised>(),
+        row::<lens::ImageDistance>(),
+        row::<lens::LensExtension>(),
+        row::<lens::SubjectFromExtension>(),
+        row::<lens::Hyperfocal>(),
+        row::<lens::DofNear>(),
+        row::<lens::DofFar>(),
+        row::<lens::DepthOfFocus>(),
+        row::<lens::Lensmaker>(),
+        row::<lens::TwoLensEfl>(),
+        row::<lens::LiquidLensFocal>(),
+        row::<lens::VertexPower>(),
+        row::<lens::FarPoint>(),
+        row::<lens::RatioForCode>(),
+        row::<lens::RangeParallax>(),
     ]
 }
 
