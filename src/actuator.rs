@@ -404,6 +404,31 @@ impl<S: Scalar> ActuatorModel<S> {
     /// [`Error::CloserThanMacro`]; a code outside the travel (for example after
     /// a large temperature offset) is [`Error::OutOfRange`] of
     /// [`Quantity::ActuatorCode`].
+    ///
+    /// ```
+    /// use embedded_optics::actuator::{ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture};
+    /// use embedded_optics::focus::SubjectDistance;
+    /// use embedded_optics::Error;
+    /// let model = ActuatorModel::from_table(0.004f32, &[
+    ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
+    ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },
+    /// ]).unwrap()
+    /// .with_travel(250, 800).unwrap()
+    /// .with_hysteresis(6).unwrap()                  // 6-code band
+    /// .with_temperature_drift(25.0, -0.4).unwrap()  // −0.4 code/K
+    /// .with_posture_offsets(7.0, -5.0).unwrap();
+    /// let field = OperatingConditions {
+    ///     temperature: Some(45.0),
+    ///     posture: Posture::FacingUp,
+    ///     approach: Some(Approach::FromInfinity),
+    /// };
+    /// // 495.9 + 3 (hysteresis) − 8 (20 K) + 7 (facing up) = 497.9.
+    /// assert_eq!(model.code_for_distance(SubjectDistance::Finite(0.2), &field), Ok(498));
+    /// assert_eq!(
+    ///     model.code_for_distance(SubjectDistance::Finite(0.08), &field),
+    ///     Err(Error::CloserThanMacro)
+    /// );
+    /// ```
     pub fn code_for_distance(
         &self,
         subject: SubjectDistance<S>,
@@ -425,6 +450,22 @@ impl<S: Scalar> ActuatorModel<S> {
     /// [`SubjectDistance::Infinity`] at or beyond infinity. A code outside the
     /// travel is [`Error::OutOfRange`]; a distance too large for the number type is
     /// [`Error::Overflow`] (treat it as infinity).
+    ///
+    /// ```
+    /// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+    /// use embedded_optics::focus::SubjectDistance;
+    /// let model = ActuatorModel::from_table(0.004f64, &[
+    ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
+    ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },
+    /// ]).unwrap();
+    /// let nominal = OperatingConditions::nominal();
+    /// // Code 500 is half the travel: extension 83.3 µm, subject 0.196 m.
+    /// let SubjectDistance::Finite(u) = model.distance_for_code(500, &nominal).unwrap() else {
+    ///     unreachable!()
+    /// };
+    /// assert!((u - (0.004 + 0.004 * 2.0 * 0.096 / 0.004)).abs() < 1e-12);
+    /// assert_eq!(model.distance_for_code(280, &nominal), Ok(SubjectDistance::Infinity));
+    /// ```
     pub fn distance_for_code(
         &self,
         code: u16,

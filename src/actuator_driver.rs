@@ -6,6 +6,30 @@
 //! ring at its resonance frequency. The driver therefore splits a move into steps
 //! of at most [`MotionProfile::max_step_codes`] and waits a settle time derived
 //! from the resonance frequency after each one.
+//!
+//! ```
+//! use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
+//! use embedded_hal_mock::eh1::i2c::{Mock, Transaction as Write};
+//! use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+//! // Our camera rig's actuator: 10-bit code in the top of a 16-bit word at 0x0C.
+//! let layout = BusLayout {
+//!     address: 0x0C, code_bits: 10, register: None, shift: 4, fixed_bits: 0, data_bytes: 2,
+//! };
+//! // 125 Hz resonance, wait one period (8 ms) after each step of at most 64 codes.
+//! let motion = MotionProfile { max_step_codes: 64, resonance_hz: 125, settle_periods: 1 };
+//! let bus = Mock::new(&[
+//!     Write::write(0x0C, vec![0x1F, 0x40]), // 500 << 4
+//!     Write::write(0x0C, vec![0x23, 0x40]), // 564 << 4
+//!     Write::write(0x0C, vec![0x25, 0x80]), // 600 << 4
+//! ]);
+//! let delay = CheckedDelay::new(&[Wait::delay_us(8000), Wait::delay_us(8000), Wait::delay_us(8000)]);
+//! let mut actuator = FocusActuatorDriver::new(bus, delay, layout, motion).unwrap();
+//! actuator.move_to(500).unwrap(); // unknown position: straight there
+//! actuator.move_to(600).unwrap(); // 564, then 600
+//! let (mut bus, mut delay) = actuator.release();
+//! bus.done();
+//! delay.done();
+//! ```
 
 use crate::actuator::Approach;
 use crate::error::{Error, Quantity};

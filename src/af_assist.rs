@@ -161,6 +161,22 @@ pub fn subject_distance_from_range<S: Scalar>(
 /// [`Error::LowConfidence`] when the sensor's own confidence (signal quality,
 /// 0 to 1) is below `min_confidence`; [`Error::CloserThanMacro`] when the subject
 /// is nearer than the lens can focus.
+///
+/// ```
+/// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+/// use embedded_optics::af_assist::{range_sensor_target, RangeSensorMount};
+/// use embedded_optics::focus::SubjectDistance;
+/// let model = ActuatorModel::from_table(0.004f32, &[
+///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
+///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },
+/// ]).unwrap();
+/// // Range sensor 12 mm beside the lens, same reference plane.
+/// let mount = RangeSensorMount { baseline: 0.012, axial_offset: 0.0 };
+/// let nominal = OperatingConditions::nominal();
+/// // 0.2004 m slant range: 0.2 m on the lens axis, code 496.
+/// let t = range_sensor_target(&model, &mount, 0.200_36, 0.95, 0.5, &nominal).unwrap();
+/// assert_eq!(t.code, 496);
+/// ```
 pub fn range_sensor_target<S: Scalar>(
     model: &ActuatorModel<S>,
     mount: &RangeSensorMount<S>,

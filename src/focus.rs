@@ -25,6 +25,13 @@ impl<S: Scalar> SubjectDistance<S> {
     /// Ratio of lens extension to focal length for this subject, `f/(u − f)` (zero
     /// at infinity); equals the magnitude of the image magnification. Dimensionless,
     /// so it is the quantity the actuator model interpolates in.
+    ///
+    /// ```
+    /// use embedded_optics::focus::SubjectDistance;
+    /// let w = SubjectDistance::Finite(0.1f64).extension_ratio(0.004).unwrap();
+    /// assert!((w - 0.004 / 0.096).abs() < 1e-15);
+    /// assert_eq!(SubjectDistance::Infinity.extension_ratio(0.004f64), Ok(0.0));
+    /// ```
     pub fn extension_ratio(self, focal_length: S) -> Result<S, Error> {
         let f = positive(focal_length, Quantity::Length)?;
         match self {
@@ -42,6 +49,14 @@ impl<S: Scalar> SubjectDistance<S> {
     /// The subject whose extension ratio is `ratio` (inverse of
     /// [`extension_ratio`](Self::extension_ratio)): `u = f + f/ratio`, infinity for
     /// a ratio of zero or less (focused at or beyond infinity).
+    ///
+    /// ```
+    /// use embedded_optics::focus::SubjectDistance;
+    /// let u = SubjectDistance::from_extension_ratio(0.004f64, 0.004 / 0.096).unwrap();
+    /// let SubjectDistance::Finite(u) = u else { unreachable!() };
+    /// assert!((u - 0.1).abs() < 1e-15);
+    /// assert_eq!(SubjectDistance::from_extension_ratio(0.004f64, -0.01), Ok(SubjectDistance::Infinity));
+    /// ```
     pub fn from_extension_ratio(focal_length: S, ratio: S) -> Result<Self, Error> {
         let f = positive(focal_length, Quantity::Length)?;
         let w = finite(ratio, Quantity::Value)?;
@@ -228,6 +243,15 @@ pub struct FocusSweepPlan<S> {
 
 impl<S: Scalar> FocusSweepPlan<S> {
     /// Extension of position `index` (0 = far end); `None` beyond the last.
+    ///
+    /// ```
+    /// use embedded_optics::focus::{plan_focus_sweep, SubjectDistance};
+    /// let plan = plan_focus_sweep(0.004f64, 2.0, 2.24e-6, 0.1, SubjectDistance::Infinity, 0.25)
+    ///     .unwrap();
+    /// assert_eq!(plan.extension_at(0), Some(0.0));
+    /// assert!((plan.extension_at(25).unwrap() - 0.016 / 96.0).abs() < 1e-12);
+    /// assert_eq!(plan.extension_at(26), None);
+    /// ```
     pub fn extension_at(&self, index: u16) -> Option<S> {
         if index >= self.steps {
             return None;
