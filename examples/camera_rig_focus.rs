@@ -1,7 +1,7 @@
 //! From a range reading to a lens move, in I8F24 fixed point.
 //!
 //! Our fictional camera rig has a 4 mm f/2 phone-size module (invented
-//! calibration: infinity at code 300, 10 cm at code 700, 10-bit VCM at I²C 0x0C)
+//! calibration: infinity at code 300, 10 cm at code 700, 10-bit VCM at I²C 0x0C behind register 0x03)
 //! and a time-of-flight sensor 12 mm beside the lens. The example plans a full
 //! contrast sweep, turns three range readings into actuator codes (with the module
 //! facing up at 40 °C), and drives a printing stand-in for the I²C bus.
@@ -89,13 +89,14 @@ fn main() -> Result<(), Error> {
         axial_offset: m(0.0)?,
     };
 
+    // Our rig's driver takes the code right-aligned after register byte 0x03.
     let layout = BusLayout {
         address: 0x0C,
+        register: Some(0x03),
         code_bits: 10,
-        register: None,
-        shift: 4,
-        fixed_bits: 0,
         data_bytes: 2,
+        shift: 0,
+        fixed_bits: 0,
     };
     let motion = MotionProfile {
         max_step_codes: 80,
