@@ -3,7 +3,7 @@
 //!
 //! Lengths are in any one unit (see [`crate::lens`] for the fixed-point ranges:
 //! metres suit [`I8F24`](fixed::types::I8F24) for phone modules; circles of
-//! confusion of a few micrometres are then resolved to about 2 %, so run depth of
+//! confusion of a few micrometres are then held to 1–3 %, so run depth of
 //! field in [`I32F32`](fixed::types::I32F32) or `f32` where that matters).
 
 use crate::error::{Error, Quantity};
@@ -105,7 +105,7 @@ pub fn subject_distance_from_extension<S: Scalar>(
     SubjectDistance::from_extension_ratio(f, e.div(f)?)
 }
 
-/// Checks an f-number: finite, 0.5 to 128.
+/// Checks an f-number: finite, 0.5 to 127.
 fn check_f_number<S: Scalar>(n: S) -> Result<S, Error> {
     n.check_range(
         Quantity::FNumber,
@@ -117,7 +117,8 @@ fn check_f_number<S: Scalar>(n: S) -> Result<S, Error> {
 /// Hyperfocal distance `H = f²/(N·c) + f`: focused there, everything from `H/2` to
 /// infinity is acceptably sharp, so a fixed-focus or fallback position sits there.
 ///
-/// `c` is the circle of confusion (see [`circle_of_confusion_from_pitch`]).
+/// `c` is the circle of confusion (see [`circle_of_confusion_from_pitch`]); the
+/// f-number runs from 0.5 to 127.
 /// Computed as `(f/√N/√c)² + f` so that no intermediate falls to the few-µm scale
 /// of `c·N` (which fixed point in metres would resolve coarsely).
 ///
