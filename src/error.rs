@@ -35,14 +35,22 @@ pub enum Quantity {
     TemperatureCoefficient,
     /// The geometry of an image region of interest (size, stride, offset).
     RegionOfInterest,
-    /// A lens actuator code (lens position command).
-    ActuatorCode,
     /// A focus-search setting (step, ratio, frame budget).
     SearchSetting,
-    /// A confidence value in [0, 1] (phase-detect hint).
-    Confidence,
     /// A parameter of the autofocus simulation (lens, scene, noise).
     SimulationSetting,
+    /// A length: focal length, subject or image distance, lens gap, pixel pitch.
+    Length,
+    /// An optical power (dioptres, or reciprocal length units).
+    OpticalPower,
+    /// A lens f-number.
+    FNumber,
+    /// A focus actuator code (DAC value), or an actuator setting in codes.
+    ActuatorCode,
+    /// A phase-detect disparity.
+    Disparity,
+    /// A confidence figure (0 to 1).
+    Confidence,
 }
 
 impl fmt::Display for Quantity {
@@ -60,10 +68,14 @@ impl fmt::Display for Quantity {
             Quantity::ScaleValue => "scale value",
             Quantity::TemperatureCoefficient => "temperature coefficient",
             Quantity::RegionOfInterest => "region of interest",
-            Quantity::ActuatorCode => "actuator code",
             Quantity::SearchSetting => "focus-search setting",
-            Quantity::Confidence => "confidence",
             Quantity::SimulationSetting => "simulation setting",
+            Quantity::Length => "length",
+            Quantity::OpticalPower => "optical power",
+            Quantity::FNumber => "f-number",
+            Quantity::ActuatorCode => "actuator code",
+            Quantity::Disparity => "phase disparity",
+            Quantity::Confidence => "confidence",
         })
     }
 }
@@ -104,6 +116,12 @@ pub enum Error {
     RecordCorrupt,
     /// A stored record was written by a newer (or unknown) format version.
     RecordVersionUnsupported,
+    /// The subject is closer than the focus actuator's calibrated macro limit: the
+    /// lens cannot reach it.
+    CloserThanMacro,
+    /// A phase-detect (or other) estimate's confidence is below the gate: do not
+    /// act on it; fall back to a contrast search.
+    LowConfidence,
 }
 
 impl fmt::Display for Error {
@@ -128,6 +146,8 @@ impl fmt::Display for Error {
             Error::RecordVersionUnsupported => {
                 f.write_str("stored record has an unsupported format version")
             }
+            Error::CloserThanMacro => f.write_str("subject closer than the actuator's macro limit"),
+            Error::LowConfidence => f.write_str("estimate confidence below the gate"),
         }
     }
 }

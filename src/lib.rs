@@ -30,11 +30,16 @@
 #[cfg(feature = "std")]
 extern crate std;
 
+pub mod actuator;
+pub mod actuator_driver;
+pub mod af_assist;
 pub mod error;
+pub mod focus;
 pub mod focus_metric;
 pub mod focus_search;
 pub mod focus_sim;
 pub mod fresnel;
+pub mod lens;
 pub mod medium;
 pub mod refraction;
 pub mod refractometer;

@@ -6,6 +6,7 @@
 
 mod cal;
 mod harness;
+mod lens;
 mod refraction;
 mod scalar;
 mod search;
@@ -40,6 +41,20 @@ fn all_rows() -> Vec<Row> {
         row::<search::PeakGaussian>(),
         row::<search::SimBlur>(),
         row::<search::SimMetric>(),
+        row::<lens::ImageDistance>(),
+        row::<lens::LensExtension>(),
+        row::<lens::SubjectFromExtension>(),
+        row::<lens::Hyperfocal>(),
+        row::<lens::DofNear>(),
+        row::<lens::DofFar>(),
+        row::<lens::DepthOfFocus>(),
+        row::<lens::Lensmaker>(),
+        row::<lens::TwoLensEfl>(),
+        row::<lens::LiquidLensFocal>(),
+        row::<lens::VertexPower>(),
+        row::<lens::FarPoint>(),
+        row::<lens::RatioForCode>(),
+        row::<lens::RangeParallax>(),
     ]
 }
 

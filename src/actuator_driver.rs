@@ -1,0 +1,255 @@
+//! An `embedded-hal` 1.0 driver for an I²C focus actuator (VCM driver or stepper
+//! controller), modelled on no particular part: the bus address, the code width (8
+//! to 12 bits) and where the code sits in the written bytes are all configuration.
+//!
+//! A voice-coil lens is a mass on a spring: a large jump in drive current makes it
+//! ring at its resonance frequency. The driver therefore splits a move into steps
+//! of at most [`MotionProfile::max_step_codes`] and waits a settle time derived
+//! from the resonance frequency after each one.
+//!
+//! ```
+//! use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
+//! use embedded_hal_mock::eh1::i2c::{Mock, Transaction as Write};
+//! use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+//! // Our camera rig's actuator: 10-bit code in the top of a 16-bit word at 0x0C.
+//! let layout = BusLayout {
+//!     address: 0x0C, code_bits: 10, register: None, shift: 4, fixed_bits: 0, data_bytes: 2,
+//! };
+//! // 125 Hz resonance, wait one period (8 ms) after each step of at most 64 codes.
+//! let motion = MotionProfile { max_step_codes: 64, resonance_hz: 125, settle_periods: 1 };
+//! let bus = Mock::new(&[
+//!     Write::write(0x0C, vec![0x1F, 0x40]), // 500 << 4
+//!     Write::write(0x0C, vec![0x23, 0x40]), // 564 << 4
+//!     Write::write(0x0C, vec![0x25, 0x80]), // 600 << 4
+//! ]);
+//! let delay = CheckedDelay::new(&[Wait::delay_us(8000), Wait::delay_us(8000), Wait::delay_us(8000)]);
+//! let mut actuator = FocusActuatorDriver::new(bus, delay, layout, motion).unwrap();
+//! actuator.move_to(500).unwrap(); // unknown position: straight there
+//! actuator.move_to(600).unwrap(); // 564, then 600
+//! let (mut bus, mut delay) = actuator.release();
+//! bus.done();
+//! delay.done();
+//! ```
+
+use crate::actuator::Approach;
+use crate::error::{Error, Quantity};
+use embedded_hal::delay::DelayNs;
+use embedded_hal::i2c::I2c;
+
+/// How the actuator expects a code on the bus.
+///
+/// The code is shifted left by `shift`, OR-ed with `fixed_bits` (mode or enable
+/// bits the part wants in every write), and sent most significant byte first in
+/// `data_bytes` bytes, after the `register` byte if there is one.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BusLayout {
+    /// 7-bit I²C address.
+    pub address: u8,
+    /// Code width, 8 to 12 bits.
+    pub code_bits: u8,
+    /// Register address written before the data, if the part has one.
+    pub register: Option<u8>,
+    /// Left shift of the code inside the data word.
+    pub shift: u8,
+    /// Bits set in every data word; must not overlap the code.
+    pub fixed_bits: u16,
+    /// Data bytes per write, 1 or 2.
+    pub data_bytes: u8,
+}
+
+impl BusLayout {
+    /// Largest code the layout can carry.
+    pub fn max_code(&self) -> u16 {
+        ((1u32 << u32::from(self.code_bits.min(12))) - 1) as u16
+    }
+
+    /// Checks the layout: address, width, that code and fixed bits fit the data
+    /// bytes and do not overlap.
+    fn check(&self) -> Result<Self, Error> {
+        let bad = Err(Error::OutOfRange(Quantity::Value));
+        if self.address > 0x7F || !(8..=12).contains(&self.code_bits) {
+            return bad;
+        }
+        if !(1..=2).contains(&self.data_bytes) {
+            return bad;
+        }
+        let word_bits = 8 * u32::from(self.data_bytes);
+        let code_mask = u32::from(self.max_code()) << u32::from(self.shift.min(16));
+        if u32::from(self.shift) + u32::from(self.code_bits) > word_bits
+            || u32::from(self.fixed_bits) >> word_bits != 0
+            || code_mask & u32::from(self.fixed_bits) != 0
+        {
+            return bad;
+        }
+        Ok(*self)
+    }
+
+    /// The bytes of one write for `code` (register byte first if any) and how
+    /// many of the three are used.
+    fn frame(&self, code: u16) -> ([u8; 3], usize) {
+        let word = (u32::from(code) << self.shift) | u32::from(self.fixed_bits);
+        let [_, _, hi, lo] = word.to_be_bytes();
+        let data: &[u8] = if self.data_bytes == 2 {
+            &[hi, lo]
+        } else {
+            &[lo]
+        };
+        let mut buf = [0u8; 3];
+        let mut n = 0;
+        for b in self.register.iter().chain(data.iter()) {
+            if let Some(slot) = buf.get_mut(n) {
+                *slot = *b;
+                n += 1;
+            }
+        }
+        (buf, n)
+    }
+}
+
+/// How moves are paced.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct MotionProfile {
+    /// Largest code change in one step (1 or more).
+    pub max_step_codes: u16,
+    /// Mechanical resonance of the lens on its spring, Hz (10 to 5000).
+    pub resonance_hz: u16,
+    /// Resonance periods to wait after each step (1 to 10; one or two damp a
+    /// typical VCM, common practice).
+    pub settle_periods: u8,
+}
+
+impl MotionProfile {
+    /// Wait after each step, microseconds: `settle_periods / resonance_hz`,
+    /// rounded up.
+    pub fn settle_us(&self) -> u32 {
+        let hz = u32::from(self.resonance_hz.max(1));
+        (u32::from(self.settle_periods) * 1_000_000).div_ceil(hz)
+    }
+
+    fn check(&self) -> Result<Self, Error> {
+        if self.max_step_codes == 0
+            || !(10..=5000).contains(&self.resonance_hz)
+            || !(1..=10).contains(&self.settle_periods)
+        {
+            return Err(Error::OutOfRange(Quantity::Value));
+        }
+        Ok(*self)
+    }
+}
+
+/// A driver failure: the bus, or a request the configuration rules out.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum DriverError<E> {
+    /// The I²C transfer failed.
+    Bus(E),
+    /// The request was refused before touching the bus.
+    Rejected(Error),
+}
+
+impl<E> From<Error> for DriverError<E> {
+    fn from(e: Error) -> Self {
+        DriverError::Rejected(e)
+    }
+}
+
+/// Focus actuator on an I²C bus.
+pub struct FocusActuatorDriver<I2C, D> {
+    i2c: I2C,
+    delay: D,
+    layout: BusLayout,
+    motion: MotionProfile,
+    position: Option<u16>,
+    last_approach: Option<Approach>,
+}
+
+impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
+    /// Takes the bus and a delay; checks the layout and motion profile. Nothing is
+    /// written until the first move. The lens position is unknown until then.
+    pub fn new(
+        i2c: I2C,
+        delay: D,
+        layout: BusLayout,
+        motion: MotionProfile,
+    ) -> Result<Self, Error> {
+        Ok(FocusActuatorDriver {
+            i2c,
+            delay,
+            layout: layout.check()?,
+            motion: motion.check()?,
+            position: None,
+            last_approach: None,
+        })
+    }
+
+    /// Code last written, if any.
+    pub fn position(&self) -> Option<u16> {
+        self.position
+    }
+
+    /// Direction of the last move, for the actuator model's hysteresis correction.
+    pub fn last_approach(&self) -> Option<Approach> {
+        self.last_approach
+    }
+
+    /// Declares where the lens is without writing (for example after a reset
+    /// that parks it at a known code), so the next move is stepped from there.
+    pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
+        self.position = Some(self.check_code(code)?);
+        Ok(())
+    }
+
+    fn check_code(&self, code: u16) -> Result<u16, Error> {
+        if code > self.layout.max_code() {
+            Err(Error::OutOfRange(Quantity::ActuatorCode))
+        } else {
+            Ok(code)
+        }
+    }
+
+    /// Writes one code, then waits the settle time.
+    fn step(&mut self, code: u16) -> Result<(), DriverError<I2C::Error>> {
+        let (buf, n) = self.layout.frame(code);
+        let bytes = buf.get(..n).unwrap_or(&buf);
+        self.i2c
+            .write(self.layout.address, bytes)
+            .map_err(DriverError::Bus)?;
+        self.position = Some(code);
+        self.delay.delay_us(self.motion.settle_us());
+        Ok(())
+    }
+
+    /// Moves to `target` in steps of at most `max_step_codes`, settling after
+    /// each. From an unknown position the first write goes straight to the target.
+    /// A code beyond the layout's width is refused without a bus write.
+    pub fn move_to(&mut self, target: u16) -> Result<(), DriverError<I2C::Error>> {
+        let target = self.check_code(target)?;
+        let Some(mut at) = self.position else {
+            return self.step(target);
+        };
+        if target != at {
+            self.last_approach = Some(if target > at {
+                Approach::FromInfinity
+            } else {
+                Approach::FromMacro
+            });
+        }
+        while at != target {
+            let max = self.motion.max_step_codes;
+            at = if target > at {
+                at.saturating_add(max).min(target)
+            } else {
+                at.saturating_sub(max).max(target)
+            };
+            self.step(at)?;
+        }
+        Ok(())
+    }
+
+    /// Gives back the bus and the delay.
+    pub fn release(self) -> (I2C, D) {
+        (self.i2c, self.delay)
+    }
+}
