@@ -561,27 +561,24 @@ fn user_scale_built_in_a_const() {
 
 // ---------------------------------------------------------- compensation ----
 
-/// OIV-MA-AS2-02 Table I rows 10–17 °C (correction, %Brix), a few entries.
-const OIV_TABLE_I: [(f64, f64, f64); 8] = [
-    (10.0, 10.0, -0.59),
-    (10.0, 70.0, -0.75),
-    (12.0, 35.0, -0.57),
-    (13.0, 50.0, -0.53),
-    (15.0, 15.0, -0.33),
-    (16.0, 25.0, -0.28),
-    (17.0, 45.0, -0.23),
-    (14.0, 60.0, -0.46),
-];
+#[path = "published/oiv_table_i.rs"]
+mod oiv_table_i;
 
 #[test]
 fn sucrose_compensation_against_oiv_table_i() {
     let comp = SucroseCompensation::oiv();
     let mut worst = 0.0f64;
-    for (t, brix, corr) in OIV_TABLE_I {
-        // Through the whole chain: nD read at t → nD at 20 °C → %Brix.
-        for_types(t, brix, corr, &comp, &mut worst);
+    let mut cells = 0;
+    for (t, row) in oiv_table_i::ROWS_C.iter().zip(oiv_table_i::CELLS) {
+        for (j, corr) in row.iter().enumerate() {
+            let brix = 10.0 + 5.0 * j as f64;
+            // Through the whole chain: nD read at t → nD at 20 °C → %Brix.
+            for_types(*t, brix, f64::from(*corr) / 100.0, &comp, &mut worst);
+            cells += 1;
+        }
     }
-    println!("max |Δ| vs OIV Table I: {worst:.4} %Brix");
+    println!("max |Δ| vs OIV Table I ({cells} cells, 4 types): {worst:.4} %Brix");
+    assert_eq!(cells, 5 * 5 + 7 * 14 + 13);
     // 20 °C needs no correction; above the rows available: an error.
     let at20: f64 = comp.brix_at_reference(30.0, 20.0).unwrap();
     assert!((at20 - 30.0).abs() < 1e-12);
@@ -590,9 +587,37 @@ fn sucrose_compensation_against_oiv_table_i() {
         Err(Error::OutOfRange(Quantity::Temperature))
     );
     assert_eq!(
+        comp.brix_at_reference(30.0f64, 4.9),
+        Err(Error::OutOfRange(Quantity::Temperature))
+    );
+    assert_eq!(
         comp.brix_at_reference(5.0f64, 15.0),
         Err(Error::OutOfRange(Quantity::ScaleValue))
     );
+    assert_eq!(
+        comp.brix_at_reference(75.1f64, 15.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    // The ragged edge: 5–9 °C stop at 30 %, the 17 °C row at 70 %, and the
+    // cells between two rows need both rows.
+    assert_eq!(
+        comp.brix_at_reference(31.0f64, 7.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    assert_eq!(
+        comp.brix_at_reference(31.0f64, 9.5),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    assert_eq!(
+        comp.brix_at_reference(72.0f64, 18.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    // On the 10 °C row the full width is usable; between 9 and 10 °C the
+    // correction lies between the two rows.
+    let b: f64 = comp.brix_at_reference(75.0, 10.0).unwrap();
+    assert!((b - 74.25).abs() < 1e-12);
+    let b: f64 = comp.brix_at_reference(30.0, 9.5).unwrap();
+    assert!((b - (30.0 - 0.72)).abs() < 1e-12);
 }
 
 fn for_types(t: f64, brix: f64, corr: f64, comp: &SucroseCompensation, worst: &mut f64) {
