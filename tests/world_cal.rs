@@ -368,15 +368,17 @@ fn brix_at_every_oiv_table_ii_row_10_to_30_both_ways() {
     println!("max |Δ| vs all 201 OIV Table II rows: {worst:.4} %Brix");
 }
 
-/// ICUMSA SPS-3 table entries at 5 %Brix steps (`// from memory`; 10, 15, 20
-/// also in OIV Table II above).
+/// ICUMSA SPS-3 table entries at 5 %Brix steps: 0 % is water, 1.33299, the
+/// 0 % row of the GOST R 50546-93 (ISO 1743) table (meganorm.ru copy); 10–30 %
+/// are in OIV Table II above; 5 % and 35–85 % are `// from memory`.
 const ICUMSA_5: [f64; 18] = [
     1.33299, 1.34026, 1.34782, 1.35568, 1.36384, 1.37233, 1.38115, 1.39032, 1.39986, 1.40978,
     1.42009, 1.43080, 1.44193, 1.45348, 1.46546, 1.47787, 1.49071, 1.50398,
 ];
 
 /// Published polynomial fit to the ICUMSA table (Brix article of the English
-/// Wikipedia, "Tables"): Bx(nD), 20 °C, 589.3 nm.
+/// Wikipedia, "Tables", as read at liquisearch.com/brix/tables): Bx(nD),
+/// 20 °C, 589.3 nm.
 fn icumsa_polynomial(n: f64) -> f64 {
     ((((11758.74 * n - 88885.21) * n + 270177.93) * n - 413145.80) * n + 318417.95) * n - 99127.4536
 }
@@ -422,6 +424,32 @@ fn brix_at_every_icumsa_entry_both_ways_all_types() {
         brix_both_ways::<f32>(brix, *nd, 0.01);
         brix_both_ways::<I32F32>(brix, *nd, 0.001);
         brix_both_ways::<I8F24>(brix, *nd, 0.01);
+    }
+}
+
+#[test]
+fn recalled_icumsa_entries_sit_where_the_published_ones_do() {
+    // Residual of the published polynomial against the sourced OIV Table II
+    // rows (10.0–30.0 %, every 0.1 %) ...
+    let residual = |brix: f64, nd: f64| brix - icumsa_polynomial(nd);
+    let (mut lo, mut hi) = (f64::MAX, f64::MIN);
+    for (i, nd) in OIV_TABLE_II_ND.iter().enumerate() {
+        let r = residual(10.0 + i as f64 / 10.0, f64::from(*nd) / 1e5);
+        lo = lo.min(r);
+        hi = hi.max(r);
+    }
+    println!("polynomial residual on OIV Table II: {lo:.4}..{hi:.4} %Brix");
+    // ... and on every 5 %Brix entry, recalled or sourced, widened by 0.005
+    // %Brix (about one unit in the fifth decimal of nD). This does not pin
+    // every digit: it catches a recalled entry off by more than about 0.015
+    // %Brix from where the published entries sit.
+    for (i, nd) in ICUMSA_5.iter().enumerate() {
+        let r = residual(5.0 * i as f64, *nd);
+        assert!(
+            r >= lo - 0.005 && r <= hi + 0.005,
+            "{} %Brix: residual {r:.4} outside {lo:.4}..{hi:.4}",
+            5 * i
+        );
     }
 }
 
