@@ -626,6 +626,14 @@ fn sucrose_compensation_against_oiv_table_i() {
         comp.brix_at_reference(75.1f64, 15.0),
         Err(Error::OutOfRange(Quantity::ScaleValue))
     );
+    // Far outside, even at the ends of I8F24's range: out of range, not an
+    // arithmetic overflow.
+    for brix in [-127.0, 127.0] {
+        assert_eq!(
+            comp.brix_at_reference(I8F24::from_num(brix), I8F24::from_num(15)),
+            Err(Error::OutOfRange(Quantity::ScaleValue))
+        );
+    }
     // The ragged edge: 5–9 °C stop at 30 %, the 17 °C row at 70 %, and the
     // cells between two rows need both rows.
     assert_eq!(

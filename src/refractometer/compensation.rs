@@ -137,7 +137,14 @@ impl SucroseCorrectionTable {
         // table) is taken at that column: at the first and last column and at
         // the end of a short row it would otherwise fall outside the table.
         let edge = lit!(S, 0.005);
-        let mut brix = brix;
+        let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
+            return Err(Error::OutOfRange(Quantity::ScaleValue));
+        };
+        let mut brix = brix.check_range(
+            Quantity::ScaleValue,
+            S::from_i32(first)?.sub(edge)?,
+            S::from_i32(last)?.add(edge)?,
+        )?;
         for &col in self.brix {
             let col = S::from_i32(col)?;
             if brix.sub(col)?.abs()? <= edge {
