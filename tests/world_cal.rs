@@ -368,15 +368,17 @@ fn brix_at_every_oiv_table_ii_row_10_to_30_both_ways() {
     println!("max |Δ| vs all 201 OIV Table II rows: {worst:.4} %Brix");
 }
 
-/// ICUMSA SPS-3 table entries at 5 %Brix steps (`// from memory`; 10, 15, 20
-/// also in OIV Table II above).
+/// ICUMSA SPS-3 table entries at 5 %Brix steps: 0 % is water, 1.33299, the
+/// 0 % row of the GOST R 50546-93 (ISO 1743) table (meganorm.ru copy); 10–30 %
+/// are in OIV Table II above; 5 % and 35–85 % are `// from memory`.
 const ICUMSA_5: [f64; 18] = [
     1.33299, 1.34026, 1.34782, 1.35568, 1.36384, 1.37233, 1.38115, 1.39032, 1.39986, 1.40978,
     1.42009, 1.43080, 1.44193, 1.45348, 1.46546, 1.47787, 1.49071, 1.50398,
 ];
 
 /// Published polynomial fit to the ICUMSA table (Brix article of the English
-/// Wikipedia, "Tables"): Bx(nD), 20 °C, 589.3 nm.
+/// Wikipedia, "Tables", as read at liquisearch.com/brix/tables): Bx(nD),
+/// 20 °C, 589.3 nm.
 fn icumsa_polynomial(n: f64) -> f64 {
     ((((11758.74 * n - 88885.21) * n + 270177.93) * n - 413145.80) * n + 318417.95) * n - 99127.4536
 }
@@ -422,6 +424,32 @@ fn brix_at_every_icumsa_entry_both_ways_all_types() {
         brix_both_ways::<f32>(brix, *nd, 0.01);
         brix_both_ways::<I32F32>(brix, *nd, 0.001);
         brix_both_ways::<I8F24>(brix, *nd, 0.01);
+    }
+}
+
+#[test]
+fn recalled_icumsa_entries_sit_where_the_published_ones_do() {
+    // Residual of the published polynomial against the sourced OIV Table II
+    // rows (10.0–30.0 %, every 0.1 %) ...
+    let residual = |brix: f64, nd: f64| brix - icumsa_polynomial(nd);
+    let (mut lo, mut hi) = (f64::MAX, f64::MIN);
+    for (i, nd) in OIV_TABLE_II_ND.iter().enumerate() {
+        let r = residual(10.0 + i as f64 / 10.0, f64::from(*nd) / 1e5);
+        lo = lo.min(r);
+        hi = hi.max(r);
+    }
+    println!("polynomial residual on OIV Table II: {lo:.4}..{hi:.4} %Brix");
+    // ... and on every 5 %Brix entry, recalled or sourced, widened by 0.005
+    // %Brix (about one unit in the fifth decimal of nD). This does not pin
+    // every digit: it catches a recalled entry off by more than about 0.015
+    // %Brix from where the published entries sit.
+    for (i, nd) in ICUMSA_5.iter().enumerate() {
+        let r = residual(5.0 * i as f64, *nd);
+        assert!(
+            r >= lo - 0.005 && r <= hi + 0.005,
+            "{} %Brix: residual {r:.4} outside {lo:.4}..{hi:.4}",
+            5 * i
+        );
     }
 }
 
@@ -561,27 +589,24 @@ fn user_scale_built_in_a_const() {
 
 // ---------------------------------------------------------- compensation ----
 
-/// OIV-MA-AS2-02 Table I rows 10–17 °C (correction, %Brix), a few entries.
-const OIV_TABLE_I: [(f64, f64, f64); 8] = [
-    (10.0, 10.0, -0.59),
-    (10.0, 70.0, -0.75),
-    (12.0, 35.0, -0.57),
-    (13.0, 50.0, -0.53),
-    (15.0, 15.0, -0.33),
-    (16.0, 25.0, -0.28),
-    (17.0, 45.0, -0.23),
-    (14.0, 60.0, -0.46),
-];
+#[path = "published/oiv_table_i.rs"]
+mod oiv_table_i;
 
 #[test]
 fn sucrose_compensation_against_oiv_table_i() {
     let comp = SucroseCompensation::oiv();
     let mut worst = 0.0f64;
-    for (t, brix, corr) in OIV_TABLE_I {
-        // Through the whole chain: nD read at t → nD at 20 °C → %Brix.
-        for_types(t, brix, corr, &comp, &mut worst);
+    let mut cells = 0;
+    for (t, row) in oiv_table_i::ROWS_C.iter().zip(oiv_table_i::CELLS) {
+        for (j, corr) in row.iter().enumerate() {
+            let brix = 10.0 + 5.0 * j as f64;
+            // Through the whole chain: nD read at t → nD at 20 °C → %Brix.
+            for_types(*t, brix, f64::from(*corr) / 100.0, &comp, &mut worst);
+            cells += 1;
+        }
     }
-    println!("max |Δ| vs OIV Table I: {worst:.4} %Brix");
+    println!("max |Δ| vs OIV Table I ({cells} cells, 4 types): {worst:.4} %Brix");
+    assert_eq!(cells, 5 * 5 + 7 * 14 + 13);
     // 20 °C needs no correction; above the rows available: an error.
     let at20: f64 = comp.brix_at_reference(30.0, 20.0).unwrap();
     assert!((at20 - 30.0).abs() < 1e-12);
@@ -590,9 +615,45 @@ fn sucrose_compensation_against_oiv_table_i() {
         Err(Error::OutOfRange(Quantity::Temperature))
     );
     assert_eq!(
+        comp.brix_at_reference(30.0f64, 4.9),
+        Err(Error::OutOfRange(Quantity::Temperature))
+    );
+    assert_eq!(
         comp.brix_at_reference(5.0f64, 15.0),
         Err(Error::OutOfRange(Quantity::ScaleValue))
     );
+    assert_eq!(
+        comp.brix_at_reference(75.1f64, 15.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    // Far outside, even at the ends of I8F24's range: out of range, not an
+    // arithmetic overflow.
+    for brix in [-127.0, 127.0] {
+        assert_eq!(
+            comp.brix_at_reference(I8F24::from_num(brix), I8F24::from_num(15)),
+            Err(Error::OutOfRange(Quantity::ScaleValue))
+        );
+    }
+    // The ragged edge: 5–9 °C stop at 30 %, the 17 °C row at 70 %, and the
+    // cells between two rows need both rows.
+    assert_eq!(
+        comp.brix_at_reference(31.0f64, 7.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    assert_eq!(
+        comp.brix_at_reference(31.0f64, 9.5),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    assert_eq!(
+        comp.brix_at_reference(72.0f64, 18.0),
+        Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+    // On the 10 °C row the full width is usable; between 9 and 10 °C the
+    // correction lies between the two rows.
+    let b: f64 = comp.brix_at_reference(75.0, 10.0).unwrap();
+    assert!((b - 74.25).abs() < 1e-12);
+    let b: f64 = comp.brix_at_reference(30.0, 9.5).unwrap();
+    assert!((b - (30.0 - 0.72)).abs() < 1e-12);
 }
 
 fn for_types(t: f64, brix: f64, corr: f64, comp: &SucroseCompensation, worst: &mut f64) {

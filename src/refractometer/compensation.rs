@@ -34,48 +34,64 @@ pub struct SucroseCorrectionTable {
     pub temperatures_c: &'static [i32],
     /// Column sugar contents, %Brix.
     pub brix: &'static [i32],
-    /// One row per temperature, one entry per column, 0.01 %Brix.
+    /// One row per temperature, one entry per column from the first, 0.01
+    /// %Brix. A row may stop before the last column where the published table
+    /// has no entries; readings that would need them are out of range.
     pub corrections: &'static [&'static [i16]],
 }
 
 /// OIV-MA-AS2-02 Table I (correction when the mass percentage of sucrose was
-/// read at a temperature other than 20 °C), the rows for 10–17 °C, columns
-/// 10–70 %, plus the 20 °C row (zero by definition).
+/// read at a temperature other than 20 °C), as published in the OIV
+/// Compendium of international methods of wine and must analysis (method
+/// OIV-MA-AS2-02, Table I): the rows for 5–17 °C, columns 10–75 %, plus the
+/// 20 °C row (zero by definition).
+///
+/// The published table is ragged and so is this one: the rows for 5–9 °C
+/// stop at 30 %, and the 17 °C row is used to 70 % (its 75 % cell was not
+/// legible in the copy read). A reading whose interpolation needs a missing
+/// cell is [`Error::OutOfRange`] with [`Quantity::ScaleValue`], never an
+/// extrapolation.
 ///
 /// The rows for 18–19 °C and 21–30 °C of the same table were not available
-/// when this was written: above 17 °C the correction is interpolated to zero at
-/// 20 °C, and above 20 °C [`SucroseCompensation::oiv`] reports
-/// [`Error::OutOfRange`]. A firmware that needs 20–30 °C supplies the full
-/// table through [`SucroseCompensation::new`].
-pub const OIV_TABLE_I_10_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable {
-    temperatures_c: &[10, 11, 12, 13, 14, 15, 16, 17, 20],
-    brix: &[10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70],
+/// when this was written: between 17 °C and 20 °C the correction is
+/// interpolated to the 20 °C zero, and above 20 °C [`SucroseCompensation::oiv`]
+/// reports [`Error::OutOfRange`]. A firmware that needs 20–30 °C supplies the
+/// full table through [`SucroseCompensation::new`].
+pub const OIV_TABLE_I_5_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable {
+    temperatures_c: &[5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 20],
+    brix: &[10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 75],
+    // OIV Compendium, OIV-MA-AS2-02 Table I, 0.01 % by mass (minus: subtract).
     corrections: &[
+        &[-82, -87, -92, -95, -99],
+        &[-80, -82, -87, -90, -94],
+        &[-74, -78, -82, -84, -88],
+        &[-69, -73, -76, -79, -82],
+        &[-64, -67, -71, -73, -75],
         &[
-            -59, -62, -65, -67, -69, -71, -72, -73, -74, -75, -75, -75, -75,
+            -59, -62, -65, -67, -69, -71, -72, -73, -74, -75, -75, -75, -75, -75,
         ],
         &[
-            -54, -57, -59, -61, -63, -64, -65, -66, -67, -68, -68, -68, -68,
+            -54, -57, -59, -61, -63, -64, -65, -66, -67, -68, -68, -68, -68, -67,
         ],
         &[
-            -49, -51, -53, -55, -56, -57, -58, -59, -60, -60, -61, -61, -60,
+            -49, -51, -53, -55, -56, -57, -58, -59, -60, -60, -61, -61, -60, -60,
         ],
         &[
-            -43, -45, -47, -48, -50, -51, -52, -52, -53, -53, -53, -53, -53,
+            -43, -45, -47, -48, -50, -51, -52, -52, -53, -53, -53, -53, -53, -53,
         ],
         &[
-            -38, -39, -40, -42, -43, -44, -44, -45, -45, -46, -46, -46, -46,
+            -38, -39, -40, -42, -43, -44, -44, -45, -45, -46, -46, -46, -46, -45,
         ],
         &[
-            -32, -33, -34, -35, -36, -37, -37, -38, -38, -38, -38, -38, -38,
+            -32, -33, -34, -35, -36, -37, -37, -38, -38, -38, -38, -38, -38, -38,
         ],
         &[
-            -26, -27, -28, -28, -29, -30, -30, -30, -31, -31, -31, -31, -31,
+            -26, -27, -28, -28, -29, -30, -30, -30, -31, -31, -31, -31, -31, -30,
         ],
         &[
             -20, -20, -21, -21, -22, -22, -23, -23, -23, -23, -23, -23, -23,
         ],
-        &[0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0],
+        &[0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0],
     ],
 };
 
@@ -97,12 +113,13 @@ fn bracket<S: Scalar>(axis: &[i32], v: S) -> Result<Option<(usize, S)>, Error> {
 
 impl SucroseCorrectionTable {
     fn entry<S: Scalar>(&self, row: usize, col: usize) -> Result<S, Error> {
+        // A cell the (ragged) published table leaves empty is out of range.
         let c = self
             .corrections
             .get(row)
             .and_then(|r| r.get(col))
             .copied()
-            .ok_or(Error::OutOfRange(Quantity::Value))?;
+            .ok_or(Error::OutOfRange(Quantity::ScaleValue))?;
         S::from_ratio(i32::from(c), 100)
     }
 
@@ -116,27 +133,42 @@ impl SucroseCorrectionTable {
         }
         let (r, fr) = bracket(self.temperatures_c, temperature_c)?
             .ok_or(Error::OutOfRange(Quantity::Temperature))?;
-        // A reading that rounds a hair outside the first or last column (the
-        // %Brix came through the ICUMSA table) is taken at that column.
+        // A reading a hair off a column (the %Brix came through the ICUMSA
+        // table) is taken at that column: at the first and last column and at
+        // the end of a short row it would otherwise fall outside the table.
         let edge = lit!(S, 0.005);
-        let brix = match (self.brix.first(), self.brix.last()) {
-            (Some(&lo), Some(&hi)) => {
-                let (lo, hi) = (S::from_i32(lo)?, S::from_i32(hi)?);
-                if brix < lo && brix >= lo.sub(edge)? {
-                    lo
-                } else if brix > hi && brix <= hi.add(edge)? {
-                    hi
-                } else {
-                    brix
-                }
-            }
-            _ => brix,
+        let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
+            return Err(Error::OutOfRange(Quantity::ScaleValue));
         };
+        let mut brix = brix.check_range(
+            Quantity::ScaleValue,
+            S::from_i32(first)?.sub(edge)?,
+            S::from_i32(last)?.add(edge)?,
+        )?;
+        for &col in self.brix {
+            let col = S::from_i32(col)?;
+            if brix.sub(col)?.abs()? <= edge {
+                brix = col;
+            }
+        }
         let (c, fc) = bracket(self.brix, brix)?.ok_or(Error::OutOfRange(Quantity::ScaleValue))?;
-        let lerp = |a: S, b: S, f: S| -> Result<S, Error> { a.add(b.sub(a)?.mul(f)?) };
-        let top = lerp(self.entry(r, c)?, self.entry(r, c + 1)?, fc)?;
-        let bottom = lerp(self.entry(r + 1, c)?, self.entry(r + 1, c + 1)?, fc)?;
-        lerp(top, bottom, fr)
+        // On a grid line the far neighbour has zero weight and is not read:
+        // a row or column that ends there (the ragged table) stays usable.
+        let lerp = |a: &dyn Fn() -> Result<S, Error>,
+                    b: &dyn Fn() -> Result<S, Error>,
+                    f: S|
+         -> Result<S, Error> {
+            if f <= S::ZERO {
+                a()
+            } else if f >= S::ONE {
+                b()
+            } else {
+                let a = a()?;
+                a.add(b()?.sub(a)?.mul(f)?)
+            }
+        };
+        let along = |row: usize| lerp(&|| self.entry(row, c), &|| self.entry(row, c + 1), fc);
+        lerp(&|| along(r), &|| along(r + 1), fr)
     }
 }
 
@@ -150,11 +182,11 @@ pub struct SucroseCompensation {
 }
 
 impl SucroseCompensation {
-    /// Compensation by OIV-MA-AS2-02 Table I, 10–20 °C and 10–70 %Brix (see
-    /// [`OIV_TABLE_I_10_TO_20_C`]).
+    /// Compensation by OIV-MA-AS2-02 Table I, 5–20 °C and 10–75 %Brix where
+    /// the table has entries (see [`OIV_TABLE_I_5_TO_20_C`]).
     pub const fn oiv() -> Self {
         Self {
-            table: OIV_TABLE_I_10_TO_20_C,
+            table: OIV_TABLE_I_5_TO_20_C,
         }
     }
 

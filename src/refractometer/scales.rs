@@ -28,11 +28,16 @@ use crate::scalar::Scalar;
 /// ICUMSA sucrose table, nD(20 °C, 589.3 nm, air) × 10⁵ at 0, 5, ..., 85 %Brix.
 ///
 /// The 10–30 %Brix entries are those of OIV-MA-AS2-02 Table II as reproduced
-/// in the French arrêté of 14 September 2011, annex IV; the others are recalled
-/// ICUMSA values (`// from memory`), checked in `tests/world_cal.rs` against the
-/// published polynomial fit to the ICUMSA table. Interpolated, the table
-/// reproduces all 201 rows of OIV Table II (10.0–30.0 %, every 0.1 %) within
-/// 0.005 %Brix.
+/// in the French arrêté of 14 September 2011, annex IV. The 0 %Brix entry is
+/// water at 20 °C, 1.33299, the 0 % row of the GOST R 50546-93 (ISO 1743)
+/// dry-substance table (as reproduced at meganorm.ru). The 5 and 35–85 %Brix
+/// entries are recalled ICUMSA values (`// from memory`): the ICUMSA table
+/// itself was not available. `tests/world_cal.rs` checks all of them against
+/// the published polynomial fit to the ICUMSA table (Brix article, "Tables"
+/// section, read at liquisearch.com/brix/tables): every entry sits 0.013–0.026
+/// %Brix above the polynomial, the sourced 10–30 % entries as much as the
+/// recalled ones. Interpolated, the table reproduces all 201 rows of OIV Table
+/// II (10.0–30.0 %, every 0.1 %) within 0.005 %Brix.
 const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
     x0: 0,
     step: 5,

@@ -191,53 +191,48 @@ impl Case for MustAlcoholFromNd {
     }
 }
 
-/// OIV Table I, 10–17 °C and 20 °C, columns 10–70 %Brix, in 0.01 %Brix.
-const OIV_T: [f64; 9] = [10.0, 11.0, 12.0, 13.0, 14.0, 15.0, 16.0, 17.0, 20.0];
-const OIV_ROWS: [[f64; 13]; 9] = [
-    [
-        -59., -62., -65., -67., -69., -71., -72., -73., -74., -75., -75., -75., -75.,
-    ],
-    [
-        -54., -57., -59., -61., -63., -64., -65., -66., -67., -68., -68., -68., -68.,
-    ],
-    [
-        -49., -51., -53., -55., -56., -57., -58., -59., -60., -60., -61., -61., -60.,
-    ],
-    [
-        -43., -45., -47., -48., -50., -51., -52., -52., -53., -53., -53., -53., -53.,
-    ],
-    [
-        -38., -39., -40., -42., -43., -44., -44., -45., -45., -46., -46., -46., -46.,
-    ],
-    [
-        -32., -33., -34., -35., -36., -37., -37., -38., -38., -38., -38., -38., -38.,
-    ],
-    [
-        -26., -27., -28., -28., -29., -30., -30., -30., -31., -31., -31., -31., -31.,
-    ],
-    [
-        -20., -20., -21., -21., -22., -22., -23., -23., -23., -23., -23., -23., -23.,
-    ],
-    [0.; 13],
-];
+#[path = "../published/oiv_table_i.rs"]
+mod oiv_table_i;
 
-fn oiv_correction(t: f64, brix: f64) -> f64 {
-    let r = OIV_T
-        .windows(2)
-        .position(|w| t >= w[0] && t <= w[1])
-        .unwrap();
-    let fr = (t - OIV_T[r]) / (OIV_T[r + 1] - OIV_T[r]);
-    let c = (((brix - 10.0) / 5.0).floor() as usize).min(11);
+/// OIV Table I cell (row `i`, column `j`) in 0.01 %Brix; row 13 is the 20 °C
+/// row, zero by definition; `None` for a cell the table leaves empty.
+fn oiv_cell(i: usize, j: usize) -> Option<f64> {
+    if i == oiv_table_i::ROWS_C.len() {
+        return (j < 14).then_some(0.0);
+    }
+    oiv_table_i::CELLS.get(i)?.get(j).map(|&c| f64::from(c))
+}
+
+/// Bilinear reading of the ragged table in f64; `None` where it needs an
+/// empty cell (a zero-weight neighbour is not read).
+fn oiv_correction(t: f64, brix: f64) -> Option<f64> {
+    let mut rows_c = oiv_table_i::ROWS_C.to_vec();
+    rows_c.push(20.0);
+    let r = rows_c.windows(2).position(|w| t >= w[0] && t <= w[1])?;
+    let fr = (t - rows_c[r]) / (rows_c[r + 1] - rows_c[r]);
+    if !(10.0..=75.0).contains(&brix) {
+        return None;
+    }
+    let c = (((brix - 10.0) / 5.0).floor() as usize).min(12);
     let fc = (brix - (10.0 + 5.0 * c as f64)) / 5.0;
-    let row = |i: usize| OIV_ROWS[i][c] + fc * (OIV_ROWS[i][c + 1] - OIV_ROWS[i][c]);
-    (row(r) + fr * (row(r + 1) - row(r))) / 100.0
+    let lerp = |a: &dyn Fn() -> Option<f64>, b: &dyn Fn() -> Option<f64>, f: f64| {
+        if f <= 0.0 {
+            a()
+        } else if f >= 1.0 {
+            b()
+        } else {
+            Some(a()? + f * (b()? - a()?))
+        }
+    };
+    let row = |i: usize| lerp(&|| oiv_cell(i, c), &|| oiv_cell(i, c + 1), fc);
+    Some(lerp(&|| row(r), &|| row(r + 1), fr)? / 100.0)
 }
 
 pub struct SucroseCorrection;
 impl Case for SucroseCorrection {
     const NAME: &'static str = "compensation::SucroseCompensation::brix_at_reference";
     const UNIT: &'static str = "%Brix";
-    const DOMAIN: &'static str = "10–20 °C, 10–70 %Brix";
+    const DOMAIN: &'static str = "5–20 °C, 10–75 %Brix (ragged as published)";
     const BUDGET: Budget = Budget {
         f64: 2.0e-14,
         f32: 1.0e-5,
@@ -246,15 +241,15 @@ impl Case for SucroseCorrection {
     };
     fn inputs() -> Vec<Vec<f64>> {
         let mut v = Vec::new();
-        for t in span(10.0, 20.0, 41) {
-            for b in span(10.0, 70.0, 61) {
+        for t in span(5.0, 20.0, 61) {
+            for b in span(10.0, 75.0, 66) {
                 v.push(vec![b, t]);
             }
         }
         v
     }
     fn reference(x: &[f64]) -> Option<f64> {
-        Some(x[0] + oiv_correction(x[1], x[0]))
+        Some(x[0] + oiv_correction(x[1], x[0])?)
     }
     fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
         SucroseCompensation::oiv().brix_at_reference(x[0], x[1])
