@@ -25,6 +25,16 @@ pub enum Quantity {
     Wavelength,
     /// A temperature.
     Temperature,
+    /// A salinity (g/kg, practical salinity ‰).
+    Salinity,
+    /// A density.
+    Density,
+    /// A pressure.
+    Pressure,
+    /// An Abbe number or a dispersion-law coefficient.
+    Dispersion,
+    /// A focal length.
+    FocalLength,
 }
 
 impl fmt::Display for Quantity {
@@ -37,6 +47,11 @@ impl fmt::Display for Quantity {
             Quantity::Cosine => "cosine",
             Quantity::Wavelength => "wavelength",
             Quantity::Temperature => "temperature",
+            Quantity::Salinity => "salinity",
+            Quantity::Density => "density",
+            Quantity::Pressure => "pressure",
+            Quantity::Dispersion => "dispersion coefficient",
+            Quantity::FocalLength => "focal length",
         })
     }
 }

@@ -30,8 +30,10 @@
 #[cfg(feature = "std")]
 extern crate std;
 
+pub mod dispersion;
 pub mod error;
 pub mod fresnel;
+pub mod media;
 pub mod medium;
 pub mod refraction;
 pub mod refractometer;
