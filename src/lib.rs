@@ -30,11 +30,13 @@
 #[cfg(feature = "std")]
 extern crate std;
 
+pub mod chromatic;
 pub mod dispersion;
 pub mod error;
 pub mod fresnel;
 pub mod media;
 pub mod medium;
+pub mod prism;
 pub mod refraction;
 pub mod refractometer;
 pub mod scalar;
