@@ -129,9 +129,12 @@ pub fn secondary_spectrum_abbe<S: Scalar>(f: S, p1: S, v1: S, p2: S, v2: S) -> R
     let p_max = crate::lit!(S, 2.0);
     let p1 = p1.check_range(Quantity::Dispersion, p_max.neg()?, p_max)?;
     let p2 = p2.check_range(Quantity::Dispersion, p_max.neg()?, p_max)?;
-    let (f1, _) = achromat_split_abbe(f, v1, v2)?;
-    // f (P1 − P2)/(V1 − V2) = f1 (P1 − P2) / V1
-    f1.mul(p1.sub(p2)?)?.div(v1)?.neg()
+    let f = check_focal_length(f)?;
+    let dv = check_abbe(v1)?.sub(check_abbe(v2)?)?;
+    if dv == S::ZERO {
+        return Err(Error::OutOfRange(Quantity::Dispersion));
+    }
+    f.mul(p1.sub(p2)?)?.div(dv)?.neg()
 }
 
 /// A thin cemented achromat designed from two glass laws: focal length `f` at
