@@ -35,8 +35,7 @@ pub const LED_MIN_NM: f64 = 400.0;
 /// Longest LED wavelength accepted, nm (Cauchy and water-like forms both hold).
 pub const LED_MAX_NM: f64 = 800.0;
 
-fn check_led<S: Scalar>(wavelength_nm: S) -> Result<S, Error> {
-    let l = nm_to_um(wavelength_nm)?;
+fn check_led_um<S: Scalar>(l: S) -> Result<S, Error> {
     l.check_range(
         Quantity::Wavelength,
         crate::lit!(S, LED_MIN_NM / 1000.0),
@@ -59,15 +58,22 @@ fn check_led<S: Scalar>(wavelength_nm: S) -> Result<S, Error> {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct WaterLikeDispersion;
 
-impl<S: Scalar> WavelengthCorrection<S> for WaterLikeDispersion {
-    fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error> {
+impl WaterLikeDispersion {
+    /// [`WavelengthCorrection::to_nd`] with the wavelength in µm (fits I8F24).
+    pub fn to_nd_um<S: Scalar>(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         let n = check_index(n)?;
-        let l = check_led(wavelength_nm)?;
+        let l = check_led_um(wavelength_um)?;
         let t = crate::lit!(S, 20.0);
         let w_led = water::index_air(t, l)?.sub(S::ONE)?;
         let w_d = water::index_air(t, crate::lit!(S, ND_NM / 1000.0))?.sub(S::ONE)?;
         // nD − 1 = (n − 1) · (w_D − 1)/(w_λ − 1)
         check_index(n.sub(S::ONE)?.mul(w_d.div(w_led)?)?.add(S::ONE)?)
+    }
+}
+
+impl<S: Scalar> WavelengthCorrection<S> for WaterLikeDispersion {
+    fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error> {
+        self.to_nd_um(n, nm_to_um(wavelength_nm)?)
     }
 }
 
@@ -112,8 +118,15 @@ impl<S: Scalar> AbbeDispersion<S> {
 
 impl<S: Scalar> WavelengthCorrection<S> for AbbeDispersion<S> {
     fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error> {
+        self.to_nd_um(n, nm_to_um(wavelength_nm)?)
+    }
+}
+
+impl<S: Scalar> AbbeDispersion<S> {
+    /// [`WavelengthCorrection::to_nd`] with the wavelength in µm (fits I8F24).
+    pub fn to_nd_um(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         let n = check_index(n)?;
-        let l = check_led(wavelength_nm)?;
+        let l = check_led_um(wavelength_um)?;
         let inv_d = crate::lit!(S, 1.0 / ((ND_NM / 1000.0) * (ND_NM / 1000.0)));
         let span = crate::lit!(
             S,
@@ -124,7 +137,8 @@ impl<S: Scalar> WavelengthCorrection<S> for AbbeDispersion<S> {
         let q = S::ONE
             .div(l.square()?)?
             .sub(inv_d)?
-            .div(self.vd.mul(span)?)?;
+            .div(span)?
+            .div(self.vd)?;
         check_index(n.add(q)?.div(S::ONE.add(q)?)?)
     }
 }

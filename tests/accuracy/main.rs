@@ -4,6 +4,7 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+mod dispersion;
 mod harness;
 mod refraction;
 mod scalar;
@@ -23,6 +24,23 @@ fn all_rows() -> Vec<Row> {
         row::<refraction::IndexFromCriticalAngle>(),
         row::<refraction::RefractionAngle>(),
         row::<refraction::FresnelUnpolarised>(),
+        row::<dispersion::SellmeierSilica>(),
+        row::<dispersion::CauchyNdVd>(),
+        row::<dispersion::AbbeVd>(),
+        row::<dispersion::WaterIapws>(),
+        row::<dispersion::WaterDensity>(),
+        row::<dispersion::WaterAir>(),
+        row::<dispersion::WaterTableAir>(),
+        row::<dispersion::SeawaterQuanFry>(),
+        row::<dispersion::AirRefractivity>(),
+        row::<dispersion::GlassSilica>(),
+        row::<dispersion::NdWaterLike>(),
+        row::<dispersion::NdAbbe>(),
+        row::<dispersion::PrismDeviation>(),
+        row::<dispersion::PrismMinDeviation>(),
+        row::<dispersion::PrismIndex>(),
+        row::<dispersion::SingletFocalLength>(),
+        row::<dispersion::AchromatSecondary>(),
     ]
 }
 
