@@ -122,11 +122,11 @@ fn all_routines<S: Scalar>(a: f64, b: f64, c: f64, d: f64) {
         assert!(f1.is_finite() && f2.is_finite());
     }
     finite(chromatic::secondary_spectrum_abbe(a, b, c, d, a));
-    if let (Ok(g1), Ok(g2)) = (Cauchy::from_nd_vd(b, c), Cauchy::from_nd_vd(c, d)) {
-        if let Ok(lens) = Achromat::design(a, &g1, &g2) {
-            finite(lens.focal_length(&g1, &g2, b));
-            finite(lens.secondary_spectrum(&g1, &g2, d));
-        }
+    if let (Ok(g1), Ok(g2)) = (Cauchy::from_nd_vd(b, c), Cauchy::from_nd_vd(c, d))
+        && let Ok(lens) = Achromat::design(a, &g1, &g2)
+    {
+        finite(lens.focal_length(&g1, &g2, b));
+        finite(lens.secondary_spectrum(&g1, &g2, d));
     }
     // Prism.
     let angle = |r: Result<S, Error>| {
