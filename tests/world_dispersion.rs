@@ -266,6 +266,17 @@ fn air_standard_and_ambient() {
     .unwrap();
     assert!((r.to_f64() - 2.7180e-4).abs() < 1e-7, "{r}");
     assert!(air::refractivity(0.633f64, 20.0, 130.0).is_err());
+    // Full Ciddor (1996) equations for dry air at 450 ppm CO2 (compressibility
+    // included), mpmath, tools/dispersion_refs.py: (λ µm, t °C, p kPa, n − 1).
+    for (l, t, p, r_ref) in [
+        (0.633, 20.0, 101.325, 0.000271799831625),
+        (0.5893, 20.0, 101.325, 0.000272406380842),
+        (0.5893, 30.0, 90.0, 0.00023394999315),
+        (0.4, -10.0, 110.0, 0.000336260623953),
+    ] {
+        let r: f64 = air::refractivity(l, t, p).unwrap();
+        assert!((r - r_ref).abs() < 6e-8, "{l} {t} {p}: {r} vs {r_ref}");
+    }
 }
 
 #[test]

@@ -78,3 +78,22 @@ for n, i in [("1.5", 50), ("1.7", 45), ("1.5168", 30)]:
     r1 = asin(sin(i) / n); s = n * sin(A - r1)
     print(n, "dev", mp.nstr(i + asin(s) - A, 15) if abs(s) <= 1 else "TIR")
 print("mindev 1.5168", mp.nstr(2 * asin(mpf('1.5168') * sin(A / 2)) - A, 15))
+
+print("# full Ciddor (1996) for dry air, 450 ppm CO2, against the crate's model")
+def ciddor_dry(l, t, p):
+    # Ciddor 1996 eqs. (1), (12), (4) with xw = 0; R and Ma cancel in rho_a/rho_axs.
+    l, t, p = mpf(l), mpf(t), mpf(p)
+    s2 = 1 / l**2
+    ras = (mpf(5792105) / (mpf('238.0185') - s2) + mpf(167917) / (mpf('57.362') - s2)) * mpf('1e-8')
+    T = t + mpf('273.15')
+    Z = 1 - (p / T) * (mpf('1.58123e-6') - mpf('2.9331e-8') * t + mpf('1.1043e-10') * t**2) + (p / T)**2 * mpf('1.83e-11')
+    Za = mpf('0.9995922115')
+    return ras * (p / mpf(101325)) * (mpf('288.15') / T) * (Za / Z)
+worst = 0
+for l in [0.3, 0.4, 0.5893, 0.633, 1.0, 1.69]:
+    for t in [-20, 0, 10, 20, 30, 50]:
+        for p in [80000, 90000, 101325, 110000, 120000]:
+            worst = max(worst, abs(ciddor_dry(l, t, p) - (n_air(l, t, p) - 1)))
+print("worst |model - full Ciddor| (80-120 kPa, -20..50 C, 0.3-1.69 um):", mp.nstr(worst, 3))
+for l, t, p in [(0.633, 20, 101325), (0.5893, 20, 101325), (0.5893, 30, 90000), (0.4, -10, 110000)]:
+    print("ciddor", (l, t, p), mp.nstr(ciddor_dry(l, t, p), 12))
