@@ -5,6 +5,10 @@
 //! air. Each implements [`Medium`](crate::medium::Medium) so instrument code can
 //! ask for `n(λ, T)` without knowing which formula answers.
 //!
+//! The `Medium` impls take the wavelength in nm (the trait's unit), so they serve
+//! `f32`, `f64` and `I32F32`; I8F24 (range ±128) uses the `*_um` functions, which
+//! take micrometres and run in every type.
+//!
 //! | model | source | reference | validity |
 //! |---|---|---|---|
 //! | [`water`] | IAPWS R9-97 with Kell (1975) density at 101.325 kPa | vacuum (or air, converted) | 0–100 °C, 0.2–1.1 µm |
