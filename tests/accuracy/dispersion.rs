@@ -535,3 +535,68 @@ impl Case for AchromatSecondary {
         Achromat::design(S::from_i32(50)?, &g1, &g2)?.secondary_spectrum(&g1, &g2, x[0])
     }
 }
+
+pub struct AngularDispersionSilica;
+impl Case for AngularDispersionSilica {
+    const NAME: &'static str = "prism::angular_dispersion_of (silica, A = 60°)";
+    const UNIT: &'static str = "rad/µm";
+    const DOMAIN: &'static str = "λ 0.4–1.0 µm";
+    const BUDGET: Budget = Budget {
+        f64: 2e-16,
+        f32: 1e-07,
+        i32f32: 6e-09,
+        i8f24: 1.5e-06,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(0.4, 1.0, 301).map(|l| vec![l]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        let l = x[0];
+        let n = silica_ref(l);
+        let terms = [
+            (0.6961663, 0.0684043f64.powi(2)),
+            (0.4079426, 0.1162414f64.powi(2)),
+            (0.8974794, 9.896161f64.powi(2)),
+        ];
+        let dn = -l / n
+            * terms
+                .iter()
+                .map(|(b, c)| b * c / (l * l - c).powi(2))
+                .sum::<f64>();
+        let s = n * (30f64.to_radians()).sin();
+        Some(2.0 * 30f64.to_radians().sin() / (1.0 - s * s).sqrt() * dn)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        let apex = S::from_f64(60f64.to_radians())?;
+        prism::angular_dispersion_of(&Sellmeier::<S>::fused_silica(), apex, x[0])
+    }
+}
+
+pub struct PartialDispersion;
+impl Case for PartialDispersion {
+    const NAME: &'static str = "dispersion::partial_dispersion_gf";
+    const UNIT: &'static str = "1";
+    const DOMAIN: &'static str = "nF 1.45–1.95, nF − nC 0.008–0.04, ng − nF 0.4–0.7 of it";
+    const BUDGET: Budget = Budget {
+        f64: 1e-15,
+        f32: 6e-08,
+        i32f32: 5e-10,
+        i8f24: 1.2e-07,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        grid(&[
+            span(1.45, 1.95, 6).collect(),
+            span(0.008, 0.04, 9).collect(),
+            span(0.4, 0.7, 7).collect(),
+        ])
+        .into_iter()
+        .map(|x| vec![x[0] + x[1] * x[2], x[0], x[0] - x[1]])
+        .collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some((x[0] - x[1]) / (x[1] - x[2]))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        dispersion::partial_dispersion_gf(x[0], x[1], x[2])
+    }
+}

@@ -27,6 +27,7 @@ fn all_rows() -> Vec<Row> {
         row::<dispersion::SellmeierSilica>(),
         row::<dispersion::CauchyNdVd>(),
         row::<dispersion::AbbeVd>(),
+        row::<dispersion::PartialDispersion>(),
         row::<dispersion::WaterIapws>(),
         row::<dispersion::WaterDensity>(),
         row::<dispersion::WaterAir>(),
@@ -39,6 +40,7 @@ fn all_rows() -> Vec<Row> {
         row::<dispersion::PrismDeviation>(),
         row::<dispersion::PrismMinDeviation>(),
         row::<dispersion::PrismIndex>(),
+        row::<dispersion::AngularDispersionSilica>(),
         row::<dispersion::SingletFocalLength>(),
         row::<dispersion::AchromatSecondary>(),
     ]
