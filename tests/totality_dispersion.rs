@@ -88,6 +88,11 @@ fn all_routines<S: Scalar>(a: f64, b: f64, c: f64, d: f64) {
     if let Ok(t) = water::WaterTable::new(a, IndexReference::Air) {
         index(t.index(b));
     }
+    if let Some(pre) = water::PrecomputedWater::new(a.to_f64(), IndexReference::Vacuum)
+        && let Ok(t) = water::WaterTable::<S>::from_precomputed(&pre)
+    {
+        index(t.index(b));
+    }
     index(seawater::index(a, b, c));
     if let Ok(sea) = seawater::Seawater::new(a) {
         index(sea.index(b, c));

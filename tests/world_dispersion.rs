@@ -391,3 +391,24 @@ fn wavelength_correction_to_nd() {
         .unwrap();
     assert!((nd.to_f64() - nd_true).abs() < 5e-5);
 }
+
+#[test]
+fn compile_time_water_table_matches_the_model() {
+    // Evaluated by the compiler in f64; must equal the generic model run in f64.
+    static TABLE: water::PrecomputedWater =
+        embedded_optics::precomputed_water!(0.5893, IndexReference::Air);
+    for (t, v) in TABLE.values().iter().enumerate() {
+        let n: f64 = water::index_air(t as f64, 0.5893).unwrap();
+        assert!((v - n).abs() < 1e-14, "{t}: {v} vs {n}");
+    }
+    assert!((TABLE.values()[20] - WATER_ND_AIR[1].1).abs() < 3e-6);
+    let a = water::WaterTable::<I8F24>::from_precomputed(&TABLE).unwrap();
+    let b = water::WaterTable::<I8F24>::new(I8F24::from_num(0.5893), IndexReference::Air).unwrap();
+    for t in 0..=50 {
+        let t = I8F24::from_num(t);
+        let d = (a.index(t).unwrap().to_f64() - b.index(t).unwrap().to_f64()).abs();
+        assert!(d < 1e-6, "{t}: {d}");
+    }
+    assert!(water::PrecomputedWater::new(1.2, IndexReference::Air).is_none());
+    assert!(water::PrecomputedWater::new(f64::NAN, IndexReference::Vacuum).is_none());
+}

@@ -13,7 +13,8 @@
 //! n, see `tests/world_dispersion.rs`).
 //!
 //! [`WaterTable`] is the firmware-sized form: 51 indices at one LED wavelength,
-//! 0–50 °C, built once from the full model and read by quadratic interpolation.
+//! 0–50 °C, read by quadratic interpolation; built once at start-up from the
+//! full model, or at compile time with [`precomputed_water!`](crate::precomputed_water).
 
 use crate::dispersion::check_wavelength_um;
 use crate::error::{Error, Quantity};
@@ -214,7 +215,9 @@ pub const TABLE_TEMPERATURE_MAX_C: f64 = 50.0;
 /// no square root. Its error against the full model evaluated in f64, measured
 /// at 0.47, 0.59, 0.65 and 0.87 µm over 0–50 °C: 1.3e-8 in f64 and I32F32
 /// (interpolation), 2.2e-7 in f32, 4.7e-7 in I8F24 (`docs/accuracy.md`), far
-/// below the model's own uncertainty.
+/// below the model's own uncertainty. Loaded from a compile-time table
+/// ([`WaterTable::from_precomputed`]) instead, the firmware needs no model code
+/// and the f32 and I8F24 figures drop to 1.2e-7 and 1.1e-7.
 /// Size: 51 values (204 bytes in I8F24, 408 in I32F32).
 ///
 /// ```
@@ -280,5 +283,127 @@ impl<S: Scalar> WaterTable<S> {
         let slope = fp.sub(fm)?.mul(S::HALF)?;
         let curve = fp.sub(f0)?.sub(f0)?.add(fm)?.mul(S::HALF)?;
         curve.mul_add(x, slope)?.mul_add(x, f0)
+    }
+}
+
+/// Water's index at one wavelength, 0, 1, ..., 50 °C, computed at **compile time**
+/// in `f64` (IAPWS R9-97, Kell density, and for [`IndexReference::Air`] the air
+/// model of [`air`]), so that a firmware links neither the model nor its square
+/// roots. Build it with [`precomputed_water!`](crate::precomputed_water), then
+/// load it into a [`WaterTable`] of the firmware's number type.
+///
+/// ```
+/// use embedded_optics::media::water::WaterTable;
+/// use embedded_optics::medium::IndexReference;
+/// use embedded_optics::precomputed_water;
+/// use fixed::types::I8F24;
+/// static WATER_590: embedded_optics::media::water::PrecomputedWater =
+///     precomputed_water!(0.590, IndexReference::Air);
+/// let table = WaterTable::<I8F24>::from_precomputed(&WATER_590).unwrap();
+/// let n = table.index(I8F24::from_num(20)).unwrap();
+/// assert!((n.to_num::<f64>() - 1.33295).abs() < 2e-5);
+/// ```
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct PrecomputedWater {
+    wavelength_um: f64,
+    reference: IndexReference,
+    values: [f64; TABLE_POINTS],
+}
+
+/// Compile-time `sqrt` for the positive arguments below (Newton from above).
+const fn const_sqrt(x: f64) -> f64 {
+    let mut y = if x > 1.0 { x } else { 1.0 };
+    let mut i = 0;
+    while i < 60 {
+        y = 0.5 * (y + x / y);
+        i += 1;
+    }
+    y
+}
+
+const fn const_index(t: f64, l: f64, reference: IndexReference) -> f64 {
+    let rho = (999.83952
+        + t * (16.945176
+            + t * (-7.9870401e-3 + t * (-46.170461e-6 + t * (105.56302e-9 + t * -280.54253e-12)))))
+        / (1.0 + 16.879850e-3 * t)
+        / 1000.0;
+    let tr = (t + 273.15) / 273.15;
+    let l2 = (l / 0.589) * (l / 0.589);
+    let f = 0.244257733 + 0.974634476e-2 * rho - 0.373234996e-2 * tr
+        + 0.268678472e-3 * l2 * tr
+        + 0.158920570e-2 / l2
+        + 0.245934259e-2 / (l2 - 0.229202 * 0.229202)
+        + 0.900704920 / (l2 - 5.432937 * 5.432937)
+        - 0.166626219e-1 * rho * rho;
+    let a = rho * f;
+    let n = const_sqrt((1.0 + 2.0 * a) / (1.0 - a));
+    match reference {
+        IndexReference::Vacuum => n,
+        IndexReference::Air => {
+            let s2 = 1.0 / (l * l);
+            let rs = (5792105.0 / (238.0185 - s2) + 167917.0 / (57.362 - s2)) * 1e-8;
+            let p = air::STANDARD_PRESSURE_KPA * 1000.0;
+            let r = rs * p * (1.0 + 1e-8 * p * (0.601 - 0.00972 * t))
+                / (96095.43 * (1.0 + 0.003661 * t));
+            n / (1.0 + r)
+        }
+    }
+}
+
+impl PrecomputedWater {
+    /// Tabulates water at `wavelength_um` (0.3–1.1 µm); `None` outside that range.
+    /// Meant for `const` evaluation; see [`precomputed_water!`](crate::precomputed_water).
+    pub const fn new(wavelength_um: f64, reference: IndexReference) -> Option<Self> {
+        // Written as a negated range test so that NaN is rejected too.
+        if !(wavelength_um >= air::WAVELENGTH_MIN_UM && wavelength_um <= WAVELENGTH_MAX_UM) {
+            return None;
+        }
+        let mut values = [0.0; TABLE_POINTS];
+        let mut i = 0;
+        while i < TABLE_POINTS {
+            values[i] = const_index(i as f64, wavelength_um, reference);
+            i += 1;
+        }
+        Some(Self {
+            wavelength_um,
+            reference,
+            values,
+        })
+    }
+
+    /// The tabulated indices, 0 to 50 °C in steps of 1 °C.
+    pub const fn values(&self) -> &[f64; TABLE_POINTS] {
+        &self.values
+    }
+}
+
+/// A [`PrecomputedWater`] evaluated at compile time; a wavelength outside
+/// 0.3–1.1 µm is a compile error, as with [`lit!`](crate::lit).
+#[macro_export]
+macro_rules! precomputed_water {
+    ($wavelength_um:expr, $reference:expr) => {
+        const {
+            match $crate::media::water::PrecomputedWater::new($wavelength_um, $reference) {
+                Some(t) => t,
+                None => panic!("wavelength outside 0.3-1.1 µm"),
+            }
+        }
+    };
+}
+
+impl<S: Scalar> WaterTable<S> {
+    /// Loads a compile-time table into the firmware's number type (51 checked
+    /// conversions, once at start-up).
+    pub fn from_precomputed(table: &PrecomputedWater) -> Result<Self, Error> {
+        let mut values = [S::ZERO; TABLE_POINTS];
+        for (v, x) in values.iter_mut().zip(table.values.iter()) {
+            *v = S::from_f64(*x)?;
+        }
+        Ok(Self {
+            wavelength_um: S::from_f64(table.wavelength_um)?,
+            reference: table.reference,
+            values,
+        })
     }
 }

@@ -600,3 +600,29 @@ impl Case for PartialDispersion {
         dispersion::partial_dispersion_gf(x[0], x[1], x[2])
     }
 }
+
+/// The compile-time table (f64 const evaluation, loaded into each type) against
+/// the full model in f64.
+pub struct WaterPrecomputedAir;
+impl Case for WaterPrecomputedAir {
+    const NAME: &'static str = "media::water::WaterTable::from_precomputed + index";
+    const UNIT: &'static str = "1 (index)";
+    const DOMAIN: &'static str = "λ 0.47, 0.59, 0.65, 0.87 µm; T 0–50 °C";
+    const BUDGET: Budget = Budget {
+        f64: 2e-08,
+        f32: 2.5e-07,
+        i32f32: 2e-08,
+        i8f24: 2.5e-07,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        WaterTableAir::inputs()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        WaterTableAir::reference(x)
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        let pre = water::PrecomputedWater::new(x[0].to_f64(), IndexReference::Air)
+            .ok_or(Error::OutOfRange(embedded_optics::Quantity::Wavelength))?;
+        water::WaterTable::from_precomputed(&pre)?.index(x[1])
+    }
+}

@@ -32,6 +32,7 @@ fn all_rows() -> Vec<Row> {
         row::<dispersion::WaterDensity>(),
         row::<dispersion::WaterAir>(),
         row::<dispersion::WaterTableAir>(),
+        row::<dispersion::WaterPrecomputedAir>(),
         row::<dispersion::SeawaterQuanFry>(),
         row::<dispersion::AirRefractivity>(),
         row::<dispersion::GlassSilica>(),
