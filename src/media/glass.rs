@@ -53,7 +53,7 @@ impl<S: Scalar> Dispersion<S> for GlassLaw<S> {
 }
 
 /// A glass: dispersion law at a reference temperature plus linear dn/dT,
-/// relative to air.
+/// relative to air unless declared otherwise with [`Glass::relative_to`].
 ///
 /// ```
 /// use embedded_optics::media::glass::Glass;
@@ -69,6 +69,7 @@ pub struct Glass<S> {
     law: GlassLaw<S>,
     dn_dt_ppm: S,
     reference_c: S,
+    reference: IndexReference,
 }
 
 impl<S: Scalar> Glass<S> {
@@ -82,6 +83,7 @@ impl<S: Scalar> Glass<S> {
             law,
             dn_dt_ppm,
             reference_c,
+            reference: IndexReference::Air,
         })
     }
 
@@ -107,7 +109,14 @@ impl<S: Scalar> Glass<S> {
             law: GlassLaw::Sellmeier(Sellmeier::fused_silica()),
             dn_dt_ppm: crate::lit!(S, 10.0),
             reference_c: crate::lit!(S, 20.0),
+            reference: IndexReference::Air,
         }
+    }
+
+    /// The same glass with its law declared relative to `reference` (default:
+    /// air, as catalogues give it; vacuum for crystal data fitted that way).
+    pub fn relative_to(self, reference: IndexReference) -> Self {
+        Self { reference, ..self }
     }
 
     /// The dispersion law at the reference temperature.
@@ -116,7 +125,7 @@ impl<S: Scalar> Glass<S> {
     }
 
     /// Index at `wavelength_um` (µm) and `temperature_c` (°C, −20–80), relative
-    /// to air: `n_p(λ, T)`.
+    /// to [`Medium::reference`]: `n_p(λ, T)`.
     pub fn index_um(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error> {
         let t = check_temperature(temperature_c)?;
         let n = self.law.index_um(wavelength_um)?;
@@ -140,6 +149,6 @@ impl<S: Scalar> Medium<S> for Glass<S> {
         self.index_um(nm_to_um(wavelength_nm)?, temperature_c)
     }
     fn reference(&self) -> IndexReference {
-        IndexReference::Air
+        self.reference
     }
 }
