@@ -51,6 +51,16 @@ pub enum Quantity {
     Disparity,
     /// A confidence figure (0 to 1).
     Confidence,
+    /// A salinity (g/kg, practical salinity ‰).
+    Salinity,
+    /// A density.
+    Density,
+    /// A pressure.
+    Pressure,
+    /// An Abbe number or a dispersion-law coefficient.
+    Dispersion,
+    /// A focal length.
+    FocalLength,
 }
 
 impl fmt::Display for Quantity {
@@ -76,6 +86,11 @@ impl fmt::Display for Quantity {
             Quantity::ActuatorCode => "actuator code",
             Quantity::Disparity => "phase disparity",
             Quantity::Confidence => "confidence",
+            Quantity::Salinity => "salinity",
+            Quantity::Density => "density",
+            Quantity::Pressure => "pressure",
+            Quantity::Dispersion => "dispersion coefficient",
+            Quantity::FocalLength => "focal length",
         })
     }
 }

@@ -5,6 +5,8 @@
 //! firmware picks the sample model (sucrose, water, a user dn/dT) and the scale
 //! (%Brix, salinity, ...) without touching the optics.
 
+pub mod wavelength;
+
 use crate::error::Error;
 use crate::scalar::Scalar;
 

@@ -5,6 +5,7 @@
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
 mod cal;
+mod dispersion;
 mod harness;
 mod lens;
 mod refraction;
@@ -55,6 +56,26 @@ fn all_rows() -> Vec<Row> {
         row::<lens::FarPoint>(),
         row::<lens::RatioForCode>(),
         row::<lens::RangeParallax>(),
+        row::<dispersion::SellmeierSilica>(),
+        row::<dispersion::CauchyNdVd>(),
+        row::<dispersion::AbbeVd>(),
+        row::<dispersion::PartialDispersion>(),
+        row::<dispersion::WaterIapws>(),
+        row::<dispersion::WaterDensity>(),
+        row::<dispersion::WaterAir>(),
+        row::<dispersion::WaterTableAir>(),
+        row::<dispersion::WaterPrecomputedAir>(),
+        row::<dispersion::SeawaterQuanFry>(),
+        row::<dispersion::AirRefractivity>(),
+        row::<dispersion::GlassSilica>(),
+        row::<dispersion::NdWaterLike>(),
+        row::<dispersion::NdAbbe>(),
+        row::<dispersion::PrismDeviation>(),
+        row::<dispersion::PrismMinDeviation>(),
+        row::<dispersion::PrismIndex>(),
+        row::<dispersion::AngularDispersionSilica>(),
+        row::<dispersion::SingletFocalLength>(),
+        row::<dispersion::AchromatSecondary>(),
     ]
 }
 
