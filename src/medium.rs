@@ -20,10 +20,11 @@ pub enum IndexReference {
 /// A transparent medium whose refractive index depends on wavelength and
 /// temperature.
 pub trait Medium<S: Scalar> {
-    /// Index at vacuum wavelength `wavelength_nm` (nm) and temperature
-    /// `temperature_c` (°C), relative to [`Medium::reference`]. Outside the model's
-    /// validity range: [`Error::OutOfRange`].
-    fn index(&self, wavelength_nm: S, temperature_c: S) -> Result<S, Error>;
+    /// Index at vacuum wavelength `wavelength_um` (µm, so that every number type,
+    /// I8F24 included, holds it) and temperature `temperature_c` (°C), relative to
+    /// [`Medium::reference`]. Outside the model's validity range:
+    /// [`Error::OutOfRange`].
+    fn index(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error>;
     /// What the index is relative to.
     fn reference(&self) -> IndexReference;
 }

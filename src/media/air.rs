@@ -173,9 +173,8 @@ impl<S: Scalar> Air<S> {
 }
 
 impl<S: Scalar> Medium<S> for Air<S> {
-    fn index(&self, wavelength_nm: S, temperature_c: S) -> Result<S, Error> {
-        let l = crate::dispersion::nm_to_um(wavelength_nm)?;
-        index(l, temperature_c, self.pressure_kpa)
+    fn index(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error> {
+        index(wavelength_um, temperature_c, self.pressure_kpa)
     }
     fn reference(&self) -> IndexReference {
         IndexReference::Vacuum

@@ -9,7 +9,7 @@
 //! wavelength. The linear form is what catalogues publish for a narrow range;
 //! it is accepted here over −20–80 °C.
 
-use crate::dispersion::{Cauchy, Dispersion, Sellmeier, nm_to_um};
+use crate::dispersion::{Cauchy, Dispersion, Sellmeier};
 use crate::error::{Error, Quantity};
 use crate::medium::{IndexReference, Medium};
 use crate::scalar::Scalar;
@@ -60,7 +60,7 @@ impl<S: Scalar> Dispersion<S> for GlassLaw<S> {
 /// use embedded_optics::medium::Medium;
 /// // A prism glass known only from its datasheet: nd 1.7174, Vd 29.5, dn/dT 4.0e-6/K.
 /// let prism = Glass::from_nd_vd(1.7174f64, 29.5, 4.0).unwrap();
-/// let n_led = prism.index(590.0, 35.0).unwrap();
+/// let n_led = prism.index(0.590, 35.0).unwrap();
 /// assert!(n_led > 1.716 && n_led < 1.718);
 /// ```
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -145,8 +145,8 @@ fn check_temperature<S: Scalar>(t: S) -> Result<S, Error> {
 }
 
 impl<S: Scalar> Medium<S> for Glass<S> {
-    fn index(&self, wavelength_nm: S, temperature_c: S) -> Result<S, Error> {
-        self.index_um(nm_to_um(wavelength_nm)?, temperature_c)
+    fn index(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error> {
+        self.index_um(wavelength_um, temperature_c)
     }
     fn reference(&self) -> IndexReference {
         self.reference

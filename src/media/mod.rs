@@ -5,9 +5,8 @@
 //! air. Each implements [`Medium`](crate::medium::Medium) so instrument code can
 //! ask for `n(λ, T)` without knowing which formula answers.
 //!
-//! The `Medium` impls take the wavelength in nm (the trait's unit), so they serve
-//! `f32`, `f64` and `I32F32`; I8F24 (range ±128) uses the `*_um` functions, which
-//! take micrometres and run in every type.
+//! Wavelengths are in micrometres throughout (the `Medium` trait's unit too), so
+//! every model runs in every number type, I8F24 (range ±128) included.
 //!
 //! | model | source | reference | validity |
 //! |---|---|---|---|

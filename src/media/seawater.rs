@@ -79,7 +79,7 @@ pub fn index<S: Scalar>(salinity: S, temperature_c: S, wavelength_um: S) -> Resu
 /// use embedded_optics::media::seawater::Seawater;
 /// use embedded_optics::medium::Medium;
 /// let sea = Seawater::new(35.0f64).unwrap();
-/// assert!(sea.index(589.3, 20.0).unwrap() > 1.339);
+/// assert!(sea.index(0.5893, 20.0).unwrap() > 1.339);
 /// ```
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -97,12 +97,8 @@ impl<S: Scalar> Seawater<S> {
 }
 
 impl<S: Scalar> Medium<S> for Seawater<S> {
-    fn index(&self, wavelength_nm: S, temperature_c: S) -> Result<S, Error> {
-        index(
-            self.salinity,
-            temperature_c,
-            crate::dispersion::nm_to_um(wavelength_nm)?,
-        )
+    fn index(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error> {
+        index(self.salinity, temperature_c, wavelength_um)
     }
     fn reference(&self) -> IndexReference {
         IndexReference::Air

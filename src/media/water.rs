@@ -177,7 +177,7 @@ fn index_in<S: Scalar>(
 /// use embedded_optics::media::water::Water;
 /// use embedded_optics::medium::{IndexReference, Medium};
 /// let water = Water::new(IndexReference::Air);
-/// let n: f64 = water.index(589.3, 20.0).unwrap();
+/// let n: f64 = water.index(0.5893, 20.0).unwrap();
 /// assert!((n - 1.33299).abs() < 2e-5);
 /// ```
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -194,9 +194,8 @@ impl Water {
 }
 
 impl<S: Scalar> Medium<S> for Water {
-    fn index(&self, wavelength_nm: S, temperature_c: S) -> Result<S, Error> {
-        let l = crate::dispersion::nm_to_um(wavelength_nm)?;
-        index_in(self.reference, temperature_c, l)
+    fn index(&self, wavelength_um: S, temperature_c: S) -> Result<S, Error> {
+        index_in(self.reference, temperature_c, wavelength_um)
     }
     fn reference(&self) -> IndexReference {
         self.reference

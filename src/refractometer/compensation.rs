@@ -221,9 +221,7 @@ impl<S: Scalar> SampleCompensation<S> for SucroseCompensation {
 /// sample temperature and 20 °C, from a water [`Medium`] at 589.3 nm.
 ///
 /// `nD20 = nD(T) + n_w(20 °C) − n_w(T)`. The medium's own validity range
-/// applies, and this compensation's range is 0–60 °C. [`Medium`] takes the
-/// wavelength in nm, which I8F24 (range ±128) cannot hold: with I8F24 this
-/// returns [`Error::Overflow`]; use I32F32 or a float.
+/// applies, and this compensation's range is 0–60 °C.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct WaterCompensation<M> {
@@ -235,9 +233,7 @@ impl<S: Scalar, M: Medium<S>> SampleCompensation<S> for WaterCompensation<M> {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
         let nd = crate::refraction::check_index(nd)?;
         let t = temperature_c.check_range(Quantity::Temperature, S::ZERO, lit!(S, 60.0))?;
-        // 589.3 nm does not fit I8F24 (range ±128): there the conversion is
-        // Error::Overflow, since `Medium` takes the wavelength in nm.
-        let sodium_d = S::from_ratio(5893, 10)?;
+        let sodium_d = lit!(S, 0.5893);
         let n20 = self.water.index(sodium_d, lit!(S, REFERENCE_C))?;
         let nt = self.water.index(sodium_d, t)?;
         crate::refraction::check_index(nd.add(n20.sub(nt)?)?)

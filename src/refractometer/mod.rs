@@ -13,8 +13,8 @@ use crate::scalar::Scalar;
 /// Converts a sample's index measured at the instrument's LED wavelength to nD
 /// (589.3 nm), using what is known of the sample's dispersion.
 pub trait WavelengthCorrection<S: Scalar> {
-    /// nD of a sample whose index at `wavelength_nm` is `n`.
-    fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error>;
+    /// nD of a sample whose index at vacuum wavelength `wavelength_um` (µm) is `n`.
+    fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error>;
 }
 
 /// Brings a sample's nD at its measured temperature to the reference temperature

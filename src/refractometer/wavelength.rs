@@ -23,7 +23,7 @@
 //! validation and local rules decide which correction is acceptable; these models
 //! are a physics aid, not a validated clinical method.
 
-use crate::dispersion::{LINE_C_NM, LINE_F_NM, ND_NM, check_abbe, nm_to_um};
+use crate::dispersion::{LINE_C_NM, LINE_F_NM, ND_NM, check_abbe};
 use crate::error::{Error, Quantity};
 use crate::media::water;
 use crate::refraction::check_index;
@@ -51,7 +51,7 @@ fn check_led_um<S: Scalar>(l: S) -> Result<S, Error> {
 /// use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 /// // Water itself, read at 590 nm, gives water's nD.
 /// let n590 = embedded_optics::media::water::index_air(20.0f64, 0.590).unwrap();
-/// let nd = WaterLikeDispersion.to_nd(n590, 590.0).unwrap();
+/// let nd = WaterLikeDispersion.to_nd(n590, 0.590).unwrap();
 /// assert!((nd - 1.33299).abs() < 2e-5);
 /// ```
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -72,8 +72,8 @@ impl WaterLikeDispersion {
 }
 
 impl<S: Scalar> WavelengthCorrection<S> for WaterLikeDispersion {
-    fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error> {
-        self.to_nd_um(n, nm_to_um(wavelength_nm)?)
+    fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error> {
+        self.to_nd_um(n, wavelength_um)
     }
 }
 
@@ -89,9 +89,9 @@ impl<S: Scalar> WavelengthCorrection<S> for WaterLikeDispersion {
 /// use embedded_optics::refractometer::WavelengthCorrection;
 /// use embedded_optics::refractometer::wavelength::AbbeDispersion;
 /// let oil = AbbeDispersion::new(40.0f64).unwrap();
-/// let nd = oil.to_nd(1.4680, 589.3).unwrap();
+/// let nd = oil.to_nd(1.4680, 0.5893).unwrap();
 /// assert!((nd - 1.4680).abs() < 1e-12);
-/// assert!(oil.to_nd(1.4650, 650.0).unwrap() > 1.4650);
+/// assert!(oil.to_nd(1.4650, 0.650).unwrap() > 1.4650);
 /// ```
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -117,8 +117,8 @@ impl<S: Scalar> AbbeDispersion<S> {
 }
 
 impl<S: Scalar> WavelengthCorrection<S> for AbbeDispersion<S> {
-    fn to_nd(&self, n: S, wavelength_nm: S) -> Result<S, Error> {
-        self.to_nd_um(n, nm_to_um(wavelength_nm)?)
+    fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error> {
+        self.to_nd_um(n, wavelength_um)
     }
 }
 
