@@ -25,6 +25,10 @@ pub enum Quantity {
     Wavelength,
     /// A temperature.
     Temperature,
+    /// A line-sensor frame (its length, or a matching reference frame).
+    SensorFrame,
+    /// A length of the optics (pixel pitch, focal length).
+    Length,
 }
 
 impl fmt::Display for Quantity {
@@ -37,6 +41,8 @@ impl fmt::Display for Quantity {
             Quantity::Cosine => "cosine",
             Quantity::Wavelength => "wavelength",
             Quantity::Temperature => "temperature",
+            Quantity::SensorFrame => "sensor frame",
+            Quantity::Length => "length",
         })
     }
 }
@@ -62,6 +68,10 @@ pub enum Error {
     /// The sample's index is at or above the prism's: there is no critical angle,
     /// so a critical-angle instrument cannot measure it.
     IndexAtOrAbovePrism,
+    /// The bright-dark boundary on a line-sensor frame could not be measured; the
+    /// fault says why (no boundary, low contrast, saturated, at the array's end,
+    /// more than one boundary).
+    Boundary(crate::refractometer::boundary::BoundaryFault),
 }
 
 impl fmt::Display for Error {
@@ -78,6 +88,7 @@ impl fmt::Display for Error {
             Error::IndexAtOrAbovePrism => f.write_str(
                 "sample index at or above the prism index: no critical angle, out of range",
             ),
+            Error::Boundary(fault) => write!(f, "boundary not measured: {fault}"),
         }
     }
 }

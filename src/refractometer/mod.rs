@@ -32,3 +32,9 @@ pub trait TradeScale<S: Scalar> {
     /// Unit, for display (`"%Brix"`, `"g/kg"`, ...).
     fn unit(&self) -> &'static str;
 }
+
+pub mod boundary;
+pub mod calibration;
+pub mod forward;
+pub mod geometry;
+pub mod instrument;
