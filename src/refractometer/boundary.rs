@@ -249,7 +249,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     // Threshold at 0.3 of the peak's height interpolated by a parabola through the
     // three highest samples, which does not depend on the sampling phase.
     let peak = step(k);
-    let (before, after) = (i64::from(step(k - 1)), i64::from(step(k + 1)));
+    let (before, after) = (i64::from(step(k.wrapping_sub(1))), i64::from(step(k + 1)));
     let curvature = 2 * i64::from(peak) - before - after;
     let rise = if curvature > 0 {
         ((after - before).pow(2) / (8 * curvature)).min(i64::from(peak))
@@ -277,7 +277,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     if den <= 0 {
         return Err(BoundaryFault::NoBoundary.into());
     }
-    let centroid = (num + den / 2).div_euclid(den);
+    let centroid = i64::try_from((num + den / 2).div_euclid(den)).map_err(|_| Error::Overflow)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
     // moved by (w − 1)/2 by the second box.
     let position = centroid + i64::from(3 * w32 - 2) * i64::from(SUBPIXEL / 2);
@@ -347,24 +347,26 @@ pub fn find_boundary<P: Copy + Into<i32>>(
 /// `v ≤ 0` just outside. Integrating the interpolant, with the partial segments
 /// at both ends, makes the centroid move smoothly with the edge instead of
 /// jumping as samples cross the threshold.
-fn centroid_sums(v: impl Fn(usize) -> i64, jl: usize, jr: usize) -> (i64, i64) {
-    const ONE: i64 = SUBPIXEL as i64;
-    let (mut moment, mut area) = (0i64, 0i64);
+fn centroid_sums(v: impl Fn(usize) -> i64, jl: usize, jr: usize) -> (i128, i128) {
+    // i128: steps reach 2^24, positions 2^12, and the moment carries 2^32 scale.
+    const ONE: i128 = SUBPIXEL as i128;
+    let v = |j: usize| i128::from(v(j));
+    let (mut moment, mut area) = (0i128, 0i128);
     for j in jl..jr {
         let (a, b) = (v(j), v(j + 1));
         area += 3 * (a + b) * ONE;
-        moment += (3 * j as i64 * (a + b) + a + 2 * b) * ONE * ONE;
+        moment += (3 * j as i128 * (a + b) + a + 2 * b) * ONE * ONE;
     }
     // Left end: zero crossing a length L = b / (b − a) before jl.
     let (a, b) = (v(jl.wrapping_sub(1)).min(0), v(jl));
     let l = b * ONE / (b - a).max(1);
     area += 3 * b * l;
-    moment += 3 * b * l * jl as i64 * ONE - b * l * l;
+    moment += 3 * b * l * jl as i128 * ONE - b * l * l;
     // Right end: zero crossing L = a / (a − b) after jr.
     let (a, b) = (v(jr), v(jr + 1).min(0));
     let l = a * ONE / (a - b).max(1);
     area += 3 * a * l;
-    moment += 3 * a * l * jr as i64 * ONE + a * l * l;
+    moment += 3 * a * l * jr as i128 * ONE + a * l * l;
     (moment, area)
 }
 

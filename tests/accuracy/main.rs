@@ -4,6 +4,7 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+mod chain;
 mod harness;
 mod refraction;
 mod scalar;
@@ -23,6 +24,9 @@ fn all_rows() -> Vec<Row> {
         row::<refraction::IndexFromCriticalAngle>(),
         row::<refraction::RefractionAngle>(),
         row::<refraction::FresnelUnpolarised>(),
+        row::<chain::PixelToIndex>(),
+        row::<chain::PixelSlope>(),
+        row::<chain::CorrectionApply>(),
     ]
 }
 
