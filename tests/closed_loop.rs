@@ -157,6 +157,7 @@ fn sample_at_or_above_the_prism_is_never_a_number() {
         for _ in 0..4 {
             let f = frame(n, 20.0, 100.0, &mut rng);
             let r = inst.measure(&f, 20.0);
+            println!("sample n {n} on a 1.72 prism: {r:?}");
             assert!(r.is_err(), "n {n}: {r:?}");
         }
     }
@@ -172,18 +173,77 @@ fn sample_at_or_above_the_prism_is_never_a_number() {
 fn settling_flags_a_warming_sample() {
     let mut inst = calibrated::<f64>();
     let mut rng = Rng::new(4);
+    // SNR 1000: the reading noise (about 5e-6) well inside the 3e-5 band.
     // Warming 0.5 °C per reading: never settled.
     let mut t = 15.0;
     for _ in 0..6 {
-        let a = average(&mut inst, sample_at_led(1.40, t), t, 300.0, &mut rng);
+        let a = average(&mut inst, sample_at_led(1.40, t), t, 1000.0, &mut rng);
         assert!(!inst.read(&a).unwrap().stable);
         t += 0.5;
     }
     // Steady: settled once the window (3 readings) is full of steady readings.
     let mut flags = Vec::new();
     for _ in 0..5 {
-        let a = average(&mut inst, sample_at_led(1.40, t), t, 300.0, &mut rng);
+        let a = average(&mut inst, sample_at_led(1.40, t), t, 1000.0, &mut rng);
         flags.push(inst.read(&a).unwrap().stable);
     }
     assert_eq!(flags, [false, false, true, true, true]);
+}
+
+#[test]
+fn flat_field_removes_pixel_response_pattern() {
+    use embedded_optics::refractometer::boundary::{correct_frame, flat_field_gains};
+    use embedded_optics::refractometer::forward::{SampleState, render};
+    let render_n = |spread: f64, n: f64, full: f64| {
+        let mut s = scene(0.0);
+        s.response_spread = spread;
+        s.full_scale = full;
+        let mut f = vec![0u16; PIXELS];
+        // Air (the reference) without dispersion: it must not dip below 1.
+        let dispersion = if n > 1.0 { SAMPLE_DN_DL } else { 0.0 };
+        let sample = SampleState {
+            index: n,
+            dispersion_per_nm: dispersion,
+            temperature_c: 20.0,
+        };
+        render(&s, &LinearGlass, &sample, &mut Rng::new(5), &mut f).unwrap();
+        f
+    };
+    // Per sensor: dark frame (LED off) and reference (prism in air, n = 1,
+    // totally reflected everywhere), then the gains.
+    let gains_for = |spread: f64| {
+        let dark = render_n(spread, 1.0, 0.0);
+        let reference = render_n(spread, 1.0, 3000.0);
+        let mut gains = vec![0u16; PIXELS];
+        flat_field_gains(&reference, Some(&dark), &mut gains).unwrap();
+        (dark, gains)
+    };
+    let read = |inst: &mut Chain<f64>, f: &[u16]| loop {
+        if let Some(r) = inst.measure(f, 20.0).unwrap() {
+            break r.nd20;
+        }
+    };
+    let mut inst = calibrated::<f64>();
+    // A sensor with 3 % response non-uniformity against an ideal one, both raw
+    // and both flat-fielded.
+    let (dark_ideal, gains_ideal) = gains_for(0.0);
+    let (dark_real, gains_real) = gains_for(0.03);
+    let mut worst = [0.0f64; 2];
+    for nd20 in [1.34, 1.40, 1.46, 1.52] {
+        let n_led = sample_at_led(nd20, 20.0);
+        let ideal = render_n(0.0, n_led, 3000.0);
+        let real = render_n(0.03, n_led, 3000.0);
+        let shift_raw = read(&mut inst, &real) - read(&mut inst, &ideal);
+        let (mut ideal_ff, mut real_ff) = (ideal.clone(), real.clone());
+        correct_frame(&mut ideal_ff, Some(&dark_ideal), Some(&gains_ideal), 4095).unwrap();
+        correct_frame(&mut real_ff, Some(&dark_real), Some(&gains_real), 4095).unwrap();
+        let shift_ff = read(&mut inst, &real_ff) - read(&mut inst, &ideal_ff);
+        worst[0] = worst[0].max(shift_raw.abs());
+        worst[1] = worst[1].max(shift_ff.abs());
+    }
+    println!(
+        "3 % response pattern: worst reading shift {:.1e} raw, {:.1e} flat-fielded",
+        worst[0], worst[1]
+    );
+    assert!(worst[1] < 5e-6 && worst[1] < worst[0] / 10.0);
 }

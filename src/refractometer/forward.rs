@@ -74,7 +74,8 @@ pub struct SensorScene {
     pub read_noise: f64,
     /// Shot noise: variance added per count of signal (0 for none).
     pub shot_noise_per_count: f64,
-    /// Pixel response non-uniformity, relative standard deviation (0 for none).
+    /// Pixel response non-uniformity, relative standard deviation (0 for none);
+    /// a fixed pattern, the same in every frame, as on a real sensor.
     pub response_spread: f64,
     /// ADC full scale: counts are clamped to `0..=adc_max`.
     pub adc_max: u16,
@@ -100,6 +101,8 @@ const NODES: [(f64, f64); 3] = [
     (0.0, 2.0 / 3.0),
     (1.732_050_807_568_877_2, 1.0 / 6.0),
 ];
+/// Seed of the sensor's fixed response pattern.
+const RESPONSE_PATTERN: u64 = 0x5EED_0F5E_450A_1100;
 /// Samples per pixel of the triangular spread.
 const STEPS_PER_PX: i32 = 8;
 
@@ -174,7 +177,10 @@ pub fn render<S: Scalar, M: Medium<S> + ?Sized>(
         let r = r_sum.div(w_sum)?;
         let t = p.tan_at(centre)?;
         let vignetting = S::ONE.div(S::ONE.add(t.square()?)?.square()?)?;
-        let prnu = S::ONE.add(p.spread.mul(S::from_ratio(rng.normal_q16(), 65536)?)?)?;
+        // Response non-uniformity is a fixed pattern of the sensor: the same
+        // pixel has the same gain in every frame.
+        let pattern = Rng::new(RESPONSE_PATTERN ^ k as u64).normal_q16();
+        let prnu = S::ONE.add(p.spread.mul(S::from_ratio(pattern, 65536)?)?)?;
         let signal = p.full.mul(vignetting)?.mul(prnu)?.mul(r)?.max(S::ZERO);
         let variance = p.read.square()?.add(p.shot.mul(signal)?)?;
         let noise = variance

@@ -15,6 +15,17 @@
 //! Sensitivities come from the chain itself: analytic for the geometry, central
 //! differences for the models behind the traits.
 //!
+//! Number types: f32, f64 and I32F32 run the whole chain from the same code.
+//! I8F24 (range ±128) cannot hold the LED wavelength in nm that
+//! [`WavelengthCorrection`] takes, so [`Instrument::new`] returns
+//! [`Error::Overflow`] for it; the boundary finder (integer), the geometry and
+//! the correction do run in I8F24.
+//!
+//! A sample at or above the prism's index has no critical angle: the sensor
+//! sees no boundary (or one at the array's end) and the reading is an
+//! [`Error::Boundary`], or [`Error::IndexAtOrAbovePrism`] from the geometry,
+//! never a number.
+//!
 //! Readings on clinical samples, battery acid or coolant inform a decision that a
 //! licensed person or the local code makes; the instrument's figures are a
 //! measurement, not that decision. Wear eye and skin protection with acids and
