@@ -79,7 +79,8 @@ fn u8_frames_work_too() {
     cfg.min_contrast = 20;
     cfg.saturation_level = 255;
     let b = find_boundary(&f[..], &cfg).unwrap();
-    assert_eq!(b.position, 63 * SUBPIXEL + SUBPIXEL / 2);
+    // A perfect step: the position to within the 1/65536-px arithmetic.
+    assert!((b.position - (63 * SUBPIXEL + SUBPIXEL / 2)).abs() <= 2);
 }
 
 #[test]
