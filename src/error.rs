@@ -61,6 +61,8 @@ pub enum Quantity {
     Dispersion,
     /// A focal length.
     FocalLength,
+    /// A line-sensor frame (its length, or a matching reference frame).
+    SensorFrame,
 }
 
 impl fmt::Display for Quantity {
@@ -91,6 +93,7 @@ impl fmt::Display for Quantity {
             Quantity::Pressure => "pressure",
             Quantity::Dispersion => "dispersion coefficient",
             Quantity::FocalLength => "focal length",
+            Quantity::SensorFrame => "sensor frame",
         })
     }
 }
@@ -137,6 +140,10 @@ pub enum Error {
     /// A phase-detect (or other) estimate's confidence is below the gate: do not
     /// act on it; fall back to a contrast search.
     LowConfidence,
+    /// The bright-dark boundary on a line-sensor frame could not be measured; the
+    /// fault says why (no boundary, low contrast, saturated, at the array's end,
+    /// more than one boundary).
+    Boundary(crate::refractometer::boundary::BoundaryFault),
 }
 
 impl fmt::Display for Error {
@@ -163,6 +170,7 @@ impl fmt::Display for Error {
             }
             Error::CloserThanMacro => f.write_str("subject closer than the actuator's macro limit"),
             Error::LowConfidence => f.write_str("estimate confidence below the gate"),
+            Error::Boundary(fault) => write!(f, "boundary not measured: {fault}"),
         }
     }
 }

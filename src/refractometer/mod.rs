@@ -35,7 +35,12 @@ pub trait TradeScale<S: Scalar> {
     fn unit(&self) -> &'static str;
 }
 
+pub mod boundary;
+pub mod calibration;
 pub mod compensation;
+pub mod forward;
+pub mod geometry;
+pub mod instrument;
 pub mod record;
 pub mod scales;
 pub mod table;

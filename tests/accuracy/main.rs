@@ -5,6 +5,7 @@
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
 mod cal;
+mod chain;
 mod dispersion;
 mod harness;
 mod lens;
@@ -76,6 +77,9 @@ fn all_rows() -> Vec<Row> {
         row::<dispersion::AngularDispersionSilica>(),
         row::<dispersion::SingletFocalLength>(),
         row::<dispersion::AchromatSecondary>(),
+        row::<chain::PixelToIndex>(),
+        row::<chain::PixelSlope>(),
+        row::<chain::CorrectionApply>(),
     ]
 }
 

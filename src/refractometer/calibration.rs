@@ -1,0 +1,166 @@
+//! Zero and span against standards, producing a [`Correction`].
+//!
+//! Zero: distilled water on the prism at whatever temperature the instrument is
+//! at; its index at the LED wavelength comes from a water [`Medium`]. Span: a
+//! second standard of known nD at 20 °C (a sucrose solution, a reference oil),
+//! brought to the LED wavelength and the current temperature through that
+//! standard's own dispersion and temperature models. A third standard adds a
+//! quadratic term.
+//!
+//! Each standard pairs what the geometry read ([`Standard::measured`]) with what
+//! the standard is ([`Standard::reference`]), both at the LED wavelength and the
+//! current temperature, relative to air. Corrections that move the reading by
+//! more than 0.01 nD or change the scale by more than 10 % are refused: they mean
+//! a wrong standard, a wrong geometry or a dirty prism, not a calibration.
+
+use crate::error::{Error, Quantity};
+use crate::medium::{IndexReference, Medium};
+use crate::refraction::check_index;
+use crate::refractometer::geometry::Correction;
+use crate::refractometer::{SampleCompensation, WavelengthCorrection};
+use crate::scalar::Scalar;
+
+/// Index of standard air relative to vacuum at 589 nm, 15 °C, 101.325 kPa
+/// (Edlén's dispersion formula; from memory): used only to bring a
+/// vacuum-referenced water model to the air reference of the trade tables.
+const AIR_INDEX: f64 = 1.000_277;
+
+/// One standard on the prism: what the geometry read and what it should be.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Standard<S> {
+    /// Index the geometry gave (before correction).
+    pub measured: S,
+    /// The standard's true index at the LED wavelength and temperature.
+    pub reference: S,
+}
+
+impl<S: Scalar> Standard<S> {
+    fn checked(self) -> Result<(S, S), Error> {
+        let m = check_index(self.measured)?;
+        let r = check_index(self.reference)?;
+        if r.sub(m)?.abs()? > crate::lit!(S, 0.01) {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+        Ok((m, r))
+    }
+}
+
+/// Index of water (or any [`Medium`]) at the LED wavelength and temperature,
+/// relative to air, for the zero standard.
+pub fn water_reference<S: Scalar, M: Medium<S> + ?Sized>(
+    water: &M,
+    wavelength_um: S,
+    temperature_c: S,
+) -> Result<S, Error> {
+    let n = water.index(wavelength_um, temperature_c)?;
+    match water.reference() {
+        IndexReference::Air => Ok(n),
+        IndexReference::Vacuum => n.div(crate::lit!(S, AIR_INDEX)),
+    }
+}
+
+/// Index at the LED wavelength and temperature `temperature_c` of a standard
+/// whose nD at 20 °C is `nd20`, through the standard's own models: the inverse of
+/// `compensation.to_reference(dispersion.to_nd(n, λ), T)`, found by secant
+/// steps (the chain's slope is close to 1, so three steps reach the number
+/// type's resolution).
+pub fn standard_reference<S, W, C>(
+    nd20: S,
+    dispersion: &W,
+    compensation: &C,
+    wavelength_um: S,
+    temperature_c: S,
+) -> Result<S, Error>
+where
+    S: Scalar,
+    W: WavelengthCorrection<S> + ?Sized,
+    C: SampleCompensation<S> + ?Sized,
+{
+    let target = check_index(nd20)?;
+    let chain =
+        |n: S| compensation.to_reference(dispersion.to_nd(n, wavelength_um)?, temperature_c);
+    let mut n0 = target;
+    let mut e0 = chain(n0)?.sub(target)?;
+    let mut n1 = n0.sub(e0)?;
+    for _ in 0..6 {
+        let e1 = chain(n1)?.sub(target)?;
+        let de = e1.sub(e0)?;
+        if e1 == S::ZERO || de == S::ZERO {
+            break;
+        }
+        let next = n1.sub(e1.mul(n1.sub(n0)?.div(de)?)?)?;
+        (n0, e0, n1) = (n1, e1, next);
+    }
+    check_index(n1)
+}
+
+/// Offset-only correction from one standard (water zero).
+pub fn zero<S: Scalar>(water: Standard<S>) -> Result<Correction<S>, Error> {
+    let (m, r) = water.checked()?;
+    Ok(Correction {
+        c0: r.sub(m)?,
+        c1: S::ONE,
+        c2: S::ZERO,
+    })
+}
+
+/// Offset and scale from two standards (water zero and a span standard at least
+/// 0.02 apart).
+pub fn zero_and_span<S: Scalar>(
+    zero: Standard<S>,
+    span: Standard<S>,
+) -> Result<Correction<S>, Error> {
+    let (m1, r1) = zero.checked()?;
+    let (m2, r2) = span.checked()?;
+    let c1 = scale(m1, r1, m2, r2)?;
+    Ok(Correction {
+        c0: r1.sub(c1.mul(m1)?)?,
+        c1,
+        c2: S::ZERO,
+    })
+}
+
+/// Quadratic correction through three standards, each pair at least 0.02 apart.
+pub fn three_standards<S: Scalar>(
+    a: Standard<S>,
+    b: Standard<S>,
+    c: Standard<S>,
+) -> Result<Correction<S>, Error> {
+    let (m1, r1) = a.checked()?;
+    let (m2, r2) = b.checked()?;
+    let (m3, r3) = c.checked()?;
+    let d12 = scale(m1, r1, m2, r2)?;
+    let d23 = scale(m2, r2, m3, r3)?;
+    let span13 = m3.sub(m1)?;
+    if span13.abs()? < crate::lit!(S, 0.02) {
+        return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+    }
+    // Newton form r1 + d12 (n − m1) + q (n − m1)(n − m2), expanded.
+    let q = d23.sub(d12)?.div(span13)?;
+    let c1 = d12.sub(q.mul(m1.add(m2)?)?)?;
+    let c0 = r1.sub(d12.mul(m1)?)?.add(q.mul(m1)?.mul(m2)?)?;
+    let out = Correction { c0, c1, c2: q };
+    // The fitted curve must stay a plausible correction across the standards.
+    for m in [m1, m2, m3] {
+        let s = out.slope(m)?;
+        if s < crate::lit!(S, 0.9) || s > crate::lit!(S, 1.1) {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+    }
+    Ok(out)
+}
+
+/// `(r2 − r1) / (m2 − m1)`, refused when the standards are closer than 0.02 or
+/// the scale is off by more than 10 %.
+fn scale<S: Scalar>(m1: S, r1: S, m2: S, r2: S) -> Result<S, Error> {
+    let dm = m2.sub(m1)?;
+    if dm.abs()? < crate::lit!(S, 0.02) {
+        return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+    }
+    let s = r2.sub(r1)?.div(dm)?;
+    if s < crate::lit!(S, 0.9) || s > crate::lit!(S, 1.1) {
+        return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+    }
+    Ok(s)
+}

@@ -1,0 +1,193 @@
+//! Boundary position on the sensor to the sample's refractive index, by the
+//! instrument's optical geometry.
+//!
+//! The ray that grazes the critical angle θc at the measuring face crosses the
+//! prism, leaves through the exit face at angle β from that face's normal, and the
+//! imaging optics (focal length `f`) bring it to the sensor at a distance `x` from
+//! the optical axis. With the apex angle `A` between the measuring and exit faces
+//! (θc = A + φ, φ the inside angle at the exit face) and Snell at the exit face in
+//! sine form, `n_s = n_p·sin θc` becomes
+//!
+//! ```text
+//! sin β = x / √(x² + f²)
+//! n_s   = cos A · sin β + sin A · √(n_p² − sin² β)
+//! ```
+//!
+//! (the relation used for prism refractometers since Abbe). sin A and cos A are
+//! computed once at construction; a reading costs a division and two square
+//! roots, no trigonometry.
+//!
+//! The physical model leaves small errors (focal length tolerance, prism angle,
+//! where the boundary finder puts the edge); [`Correction`] removes them with
+//! coefficients fitted to standards (see [`calibration`](super::calibration)).
+
+use crate::error::{Error, Quantity};
+use crate::refraction::check_index;
+use crate::refractometer::boundary::SUBPIXEL;
+use crate::scalar::Scalar;
+
+/// Sub-pixel positions are scaled by this many pixels before entering a
+/// [`Scalar`], so that I8F24 (range ±128) holds a 4096-pixel array.
+const POSITION_SCALE: i32 = 64;
+
+/// The optics between the measuring face and the sensor, as designed. Plain
+/// numbers so that it can be a `const` in firmware.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct GeometryDescription {
+    /// Pixel pitch along the array, µm (1 to 100).
+    pub pixel_pitch_um: f64,
+    /// Focal length of the imaging optics, mm (1 to 500).
+    pub focal_length_mm: f64,
+    /// Where the imaging axis meets the sensor, in pixels (0 to 4096, fractional
+    /// allowed; pixel `k`'s centre is at `k`).
+    pub axis_offset_px: f64,
+    /// Apex angle between the measuring face and the exit face, degrees (20 to 85).
+    pub apex_angle_deg: f64,
+    /// `false`: the exit angle β grows with pixel number (the ray leaves further
+    /// from the apex side at higher pixels); `true`: it shrinks.
+    pub reversed: bool,
+}
+
+/// The geometry prepared for the hot path.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Geometry<S> {
+    axis: i32,
+    /// tan β per [`POSITION_SCALE`] pixels: 64 · pitch / f.
+    step: S,
+    sin_apex: S,
+    cos_apex: S,
+    reversed: bool,
+}
+
+/// Checks a number of a design description: finite and within `[lo, hi]`.
+pub(crate) fn check_described(x: f64, lo: f64, hi: f64, q: Quantity) -> Result<f64, Error> {
+    if !x.is_finite() {
+        Err(Error::NotFinite(q))
+    } else if x < lo || x > hi {
+        Err(Error::OutOfRange(q))
+    } else {
+        Ok(x)
+    }
+}
+
+impl<S: Scalar> Geometry<S> {
+    /// Checks a description and prepares it (the only place with trigonometry).
+    pub fn new(d: &GeometryDescription) -> Result<Self, Error> {
+        let pitch = check_described(d.pixel_pitch_um, 1.0, 100.0, Quantity::Length)?;
+        let f = check_described(d.focal_length_mm, 1.0, 500.0, Quantity::Length)?;
+        let axis = check_described(d.axis_offset_px, 0.0, 4096.0, Quantity::Length)?;
+        let apex = check_described(d.apex_angle_deg, 20.0, 85.0, Quantity::Angle)?.to_radians();
+        Ok(Geometry {
+            axis: libm::round(axis * f64::from(SUBPIXEL)) as i32,
+            step: S::from_f64(f64::from(POSITION_SCALE) * pitch * 1e-3 / f)?,
+            sin_apex: S::from_f64(libm::sin(apex))?,
+            cos_apex: S::from_f64(libm::cos(apex))?,
+            reversed: d.reversed,
+        })
+    }
+
+    /// tan β and sin β of the ray reaching sub-pixel `position` (1/65536 px).
+    fn exit_ray(&self, position: i32) -> Result<(S, S, S), Error> {
+        let offset = position.checked_sub(self.axis).ok_or(Error::Overflow)?;
+        let offset = if self.reversed {
+            offset.checked_neg().ok_or(Error::Overflow)?
+        } else {
+            offset
+        };
+        let t = S::from_ratio(offset, SUBPIXEL * POSITION_SCALE)?.mul(self.step)?;
+        let cos_beta = S::ONE.div(S::ONE.add(t.square()?)?.sqrt()?)?;
+        Ok((t, t.mul(cos_beta)?, cos_beta))
+    }
+
+    /// Sine of the exit angle β for a boundary at `position` (1/65536 px).
+    pub fn exit_sine(&self, position: i32) -> Result<S, Error> {
+        Ok(self.exit_ray(position)?.1)
+    }
+
+    /// Sample index (relative to the same reference as `n_prism`) for a boundary
+    /// at `position` (1/65536 px), with the prism index at the LED wavelength and
+    /// prism temperature.
+    ///
+    /// [`Error::IndexAtOrAbovePrism`] where the position means a sample at or
+    /// above the prism's index; `OutOfRange(RefractiveIndex)` below 1.
+    ///
+    /// ```
+    /// use embedded_optics::refractometer::geometry::*;
+    /// let g = Geometry::<f64>::new(&GeometryDescription {
+    ///     pixel_pitch_um: 7.0, focal_length_mm: 40.0, axis_offset_px: 1024.0,
+    ///     apex_angle_deg: 56.0, reversed: false,
+    /// }).unwrap();
+    /// // On the axis the ray leaves the exit face along its normal: n = n_p sin A.
+    /// let n = g.sample_index(1024 * 65536, 1.72).unwrap();
+    /// assert!((n - 1.72 * 56f64.to_radians().sin()).abs() < 1e-12);
+    /// ```
+    pub fn sample_index(&self, position: i32, n_prism: S) -> Result<S, Error> {
+        Ok(self.sample_index_and_slope(position, n_prism)?.0)
+    }
+
+    /// Sample index and its derivative with respect to the boundary position
+    /// (index per pixel), for uncertainty propagation.
+    pub fn sample_index_and_slope(&self, position: i32, n_prism: S) -> Result<(S, S), Error> {
+        let n_p = check_index(n_prism)?;
+        let (_, sin_beta, cos_beta) = self.exit_ray(position)?;
+        let root = n_p.square()?.sub(sin_beta.square()?)?.sqrt()?;
+        // θc = A + φ at or past 90° (cos A·cos φ ≤ sin A·sin φ): the ray would
+        // graze the measuring face or beyond, as for a sample at or above the
+        // prism's index.
+        if self.cos_apex.mul(root)? <= self.sin_apex.mul(sin_beta)? {
+            return Err(Error::IndexAtOrAbovePrism);
+        }
+        let n = self.cos_apex.mul(sin_beta)?.add(self.sin_apex.mul(root)?)?;
+        if n >= n_p {
+            return Err(Error::IndexAtOrAbovePrism);
+        }
+        if n < S::ONE {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+        // dn/dsinβ · dsinβ/dt · dt/dpx, with dsinβ/dt = cos³β.
+        let dn_ds = self.cos_apex.sub(self.sin_apex.mul(sin_beta)?.div(root)?)?;
+        let per_px = self.step.div(S::from_i32(POSITION_SCALE)?)?;
+        let slope = dn_ds.mul(cos_beta.square()?.mul(cos_beta)?)?.mul(per_px)?;
+        let slope = if self.reversed { slope.neg()? } else { slope };
+        Ok((n, slope))
+    }
+}
+
+/// Empirical correction fitted to standards: `n' = c0 + c1·n + c2·n²`, applied
+/// to the geometry's index. Three coefficients in fixed memory (the calibration
+/// record stores exactly these).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Correction<S> {
+    /// Constant term.
+    pub c0: S,
+    /// Linear term (1 for an offset-only correction).
+    pub c1: S,
+    /// Quadratic term (0 unless three standards were used).
+    pub c2: S,
+}
+
+impl<S: Scalar> Correction<S> {
+    /// No correction.
+    pub fn identity() -> Self {
+        Correction {
+            c0: S::ZERO,
+            c1: S::ONE,
+            c2: S::ZERO,
+        }
+    }
+
+    /// The corrected index, `c0 + n·(c1 + c2·n)`.
+    pub fn apply(&self, n: S) -> Result<S, Error> {
+        let n = check_index(n)?;
+        let out = self.c2.mul_add(n, self.c1)?.mul_add(n, self.c0)?;
+        check_index(out)
+    }
+
+    /// Derivative `c1 + 2·c2·n`, for uncertainty propagation.
+    pub fn slope(&self, n: S) -> Result<S, Error> {
+        self.c2.mul(n)?.mul(S::TWO)?.add(self.c1)
+    }
+}

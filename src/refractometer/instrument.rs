@@ -1,0 +1,516 @@
+//! The whole chain in one object: frames and temperatures in; nD at 20 °C, the
+//! trade-scale value, the temperature, quality figures, a standard uncertainty
+//! and a settled/not-settled flag out.
+//!
+//! ```text
+//! frame ─▶ boundary ─▶ average ─▶ geometry (prism n at LED λ, T) ─▶ Correction
+//!       ─▶ WavelengthCorrection (→ nD at T) ─▶ SampleCompensation (→ nD at 20 °C)
+//!       ─▶ TradeScale
+//! ```
+//!
+//! The uncertainty is propagated to first order (GUM, uncorrelated inputs) from
+//! the boundary position's noise (shrinking with the frames averaged), the
+//! temperature sensor's standard uncertainty (through the whole chain: prism
+//! index and sample compensation) and the calibration's standard uncertainty.
+//! Sensitivities come from the chain itself: analytic for the geometry, central
+//! differences for the models behind the traits.
+//!
+//! Number types: f32, f64 and I32F32 run the whole chain from the same code;
+//! the LED wavelength is carried in µm inside (the unit of [`Medium`] and
+//! [`WavelengthCorrection`]), so nothing in the chain needs a range beyond I8F24's
+//! for the wavelength.
+//!
+//! A sample at or above the prism's index has no critical angle: the sensor
+//! sees no boundary (or one at the array's end) and the reading is an
+//! [`Error::Boundary`], or [`Error::IndexAtOrAbovePrism`] from the geometry,
+//! never a number.
+//!
+//! Readings on clinical samples, battery acid or coolant inform a decision that a
+//! licensed person or the local code makes; the instrument's figures are a
+//! measurement, not that decision. Wear eye and skin protection with acids and
+//! glycols as the local rules require.
+//!
+//! ```
+//! use embedded_optics::Error;
+//! use embedded_optics::medium::{IndexReference, Medium};
+//! use embedded_optics::refractometer::*;
+//! use embedded_optics::refractometer::boundary::*;
+//! use embedded_optics::refractometer::forward::*;
+//! use embedded_optics::refractometer::geometry::GeometryDescription;
+//! use embedded_optics::refractometer::instrument::*;
+//!
+//! // Test doubles, not physics: a prism of fixed index, a sample without
+//! // dispersion or temperature dependence, and a scale that reads nD itself.
+//! struct Glass;
+//! impl Medium<f64> for Glass {
+//!     fn index(&self, _: f64, _: f64) -> Result<f64, Error> { Ok(1.72) }
+//!     fn reference(&self) -> IndexReference { IndexReference::Air }
+//! }
+//! struct Plain;
+//! impl WavelengthCorrection<f64> for Plain {
+//!     fn to_nd(&self, n: f64, _: f64) -> Result<f64, Error> { Ok(n) }
+//! }
+//! impl SampleCompensation<f64> for Plain {
+//!     fn to_reference(&self, nd: f64, _: f64) -> Result<f64, Error> { Ok(nd) }
+//! }
+//! impl TradeScale<f64> for Plain {
+//!     fn value_at(&self, nd20: f64) -> Result<f64, Error> { Ok(nd20) }
+//!     fn nd20_at(&self, v: f64) -> Result<f64, Error> { Ok(v) }
+//!     fn unit(&self) -> &'static str { "nD" }
+//! }
+//!
+//! const GEOMETRY: GeometryDescription = GeometryDescription {
+//!     pixel_pitch_um: 14.0, focal_length_mm: 40.0, axis_offset_px: 256.0,
+//!     apex_angle_deg: 56.0, reversed: false,
+//! };
+//! const DESCRIPTION: InstrumentDescription = InstrumentDescription {
+//!     geometry: GEOMETRY,
+//!     boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
+//!     led_wavelength_nm: 589.3,
+//!     frames_per_reading: 1,
+//!     temperature_uncertainty_c: 0.1,
+//!     calibration_uncertainty: 2e-5,
+//!     settle_readings: 3,
+//!     settle_band_nd: 2e-5,
+//!     settle_band_c: 0.1,
+//! };
+//! let mut inst = Instrument::new(&DESCRIPTION, Glass, Plain, Plain, Plain).unwrap();
+//!
+//! // A frame from the forward model: sample nD 1.4000 at 20 °C.
+//! let scene = SensorScene {
+//!     geometry: GEOMETRY, led_centre_nm: 589.3, led_fwhm_nm: 0.0, blur_px: 1.5,
+//!     full_scale: 3000.0, dark_level: 100.0, read_noise: 3.0,
+//!     shot_noise_per_count: 0.0, response_spread: 0.0, adc_max: 4095,
+//! };
+//! let sample = SampleState { index: 1.4, dispersion_per_nm: 0.0, temperature_c: 20.0 };
+//! let mut frame = [0u16; 512];
+//! render(&scene, &Glass, &sample, &mut Rng::new(7), &mut frame).unwrap();
+//!
+//! let reading = inst.measure(&frame, 20.0).unwrap().unwrap();
+//! // Uncalibrated: the finder sits on the steepest part of the Fresnel edge, a
+//! // little inside the critical angle; calibration removes that offset.
+//! assert!((reading.nd20 - 1.4).abs() < 1.5e-3);
+//! assert!(reading.uncertainty > 0.0 && !reading.stable);
+//! ```
+
+use crate::error::{Error, Quantity};
+use crate::medium::Medium;
+use crate::refraction::check_index;
+use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
+use crate::refractometer::calibration::{self, Standard};
+use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
+use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use crate::scalar::Scalar;
+
+/// Longest settling window, readings.
+pub const SETTLE_MAX: usize = 8;
+/// Most frames averaged into one reading.
+pub const FRAMES_MAX: u8 = 64;
+
+/// Everything fixed about one instrument design. Plain numbers: a `const`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct InstrumentDescription {
+    /// Optics between the measuring face and the sensor.
+    pub geometry: GeometryDescription,
+    /// How the boundary is found.
+    pub boundary: BoundaryConfig,
+    /// LED centre wavelength, nm (300 to 1100).
+    pub led_wavelength_nm: f64,
+    /// Frames averaged into one reading (1 to [`FRAMES_MAX`]).
+    pub frames_per_reading: u8,
+    /// Standard uncertainty of the temperature given with each frame, °C.
+    pub temperature_uncertainty_c: f64,
+    /// Standard uncertainty the calibration leaves (standards and their
+    /// reading), nD.
+    pub calibration_uncertainty: f64,
+    /// Readings in the settling window (2 to [`SETTLE_MAX`]).
+    pub settle_readings: u8,
+    /// A reading is settled when nD at 20 °C spread over the window by no more
+    /// than this.
+    pub settle_band_nd: f64,
+    /// ... and the temperature by no more than this, °C.
+    pub settle_band_c: f64,
+}
+
+/// Boundary positions averaged over the configured number of frames.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Averaged<S> {
+    /// Mean boundary position, 1/65536 pixel.
+    pub position: i32,
+    /// Standard uncertainty of the mean position, 1/65536 pixel.
+    pub position_uncertainty: i32,
+    /// Mean temperature, °C.
+    pub temperature_c: S,
+    /// Quality figures of the last frame.
+    pub boundary: Boundary,
+    /// Frames averaged.
+    pub frames: u8,
+}
+
+/// One reading of the chain.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Reading<S> {
+    /// nD at 20 °C, relative to air.
+    pub nd20: S,
+    /// nD at the sample temperature.
+    pub nd: S,
+    /// Value on the trade scale (in the scale's unit).
+    pub scale_value: S,
+    /// Sample index at the LED wavelength, after the calibration correction.
+    pub index_at_led: S,
+    /// Index the geometry gave before correction (what calibration pairs with a
+    /// standard).
+    pub raw_index: S,
+    /// Sample temperature, °C.
+    pub temperature_c: S,
+    /// Standard uncertainty of `nd20` (first order, k = 1).
+    pub uncertainty: S,
+    /// `false` while readings still drift (sample warming or cooling).
+    pub stable: bool,
+    /// Boundary position and quality figures.
+    pub averaged: Averaged<S>,
+}
+
+/// A refractometer: the chain with its models, calibration and running state.
+pub struct Instrument<S, P, W, C, T> {
+    geometry: Geometry<S>,
+    boundary: BoundaryConfig,
+    wavelength: S, // LED centre wavelength, µm
+    prism: P,
+    dispersion: W,
+    compensation: C,
+    scale: T,
+    correction: Correction<S>,
+    zero_standard: Option<Standard<S>>,
+    frames: u8,
+    u_temperature: S,
+    u_calibration: S,
+    settle_len: usize,
+    band_nd: S,
+    band_c: S,
+    // Frame averaging.
+    count: u8,
+    position_sum: i64,
+    position_squares: i128,
+    variance_sum: i64,
+    temperature_mean: S,
+    // Settling window: (nD20, temperature) of recent readings.
+    history: [(S, S); SETTLE_MAX],
+    history_len: usize,
+    history_next: usize,
+}
+
+fn described<S: Scalar>(x: f64, lo: f64, hi: f64, q: Quantity) -> Result<S, Error> {
+    S::from_f64(check_described(x, lo, hi, q)?)
+}
+
+impl<S, P, W, C, T> Instrument<S, P, W, C, T>
+where
+    S: Scalar,
+    P: Medium<S>,
+    W: WavelengthCorrection<S>,
+    C: SampleCompensation<S>,
+    T: TradeScale<S>,
+{
+    /// Builds the instrument from its description and models, uncalibrated
+    /// (identity [`Correction`]).
+    pub fn new(
+        d: &InstrumentDescription,
+        prism: P,
+        dispersion: W,
+        compensation: C,
+        scale: T,
+    ) -> Result<Self, Error> {
+        if !(1..=FRAMES_MAX).contains(&d.frames_per_reading)
+            || !(2..=SETTLE_MAX).contains(&usize::from(d.settle_readings))
+        {
+            return Err(Error::OutOfRange(Quantity::Value));
+        }
+        Ok(Instrument {
+            geometry: Geometry::new(&d.geometry)?,
+            boundary: d.boundary,
+            wavelength: described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?,
+            prism,
+            dispersion,
+            compensation,
+            scale,
+            correction: Correction::identity(),
+            zero_standard: None,
+            frames: d.frames_per_reading,
+            u_temperature: described(
+                d.temperature_uncertainty_c,
+                0.0,
+                10.0,
+                Quantity::Temperature,
+            )?,
+            u_calibration: described(
+                d.calibration_uncertainty,
+                0.0,
+                0.01,
+                Quantity::RefractiveIndex,
+            )?,
+            settle_len: usize::from(d.settle_readings),
+            band_nd: described(d.settle_band_nd, 0.0, 0.01, Quantity::RefractiveIndex)?,
+            band_c: described(d.settle_band_c, 0.0, 10.0, Quantity::Temperature)?,
+            count: 0,
+            position_sum: 0,
+            position_squares: 0,
+            variance_sum: 0,
+            temperature_mean: S::ZERO,
+            history: [(S::ZERO, S::ZERO); SETTLE_MAX],
+            history_len: 0,
+            history_next: 0,
+        })
+    }
+
+    /// The calibration correction in use.
+    pub fn correction(&self) -> Correction<S> {
+        self.correction
+    }
+
+    /// Sets a correction (e.g. one read back from the calibration record).
+    pub fn set_correction(&mut self, c: Correction<S>) {
+        self.correction = c;
+    }
+
+    /// Forgets partial averages and the settling history (new sample).
+    pub fn restart(&mut self) {
+        self.count = 0;
+        self.history_len = 0;
+        self.history_next = 0;
+    }
+
+    /// Feeds one frame (already dark-subtracted and flat-fielded if the design
+    /// does that, see [`correct_frame`](super::boundary::correct_frame)) with the
+    /// sample temperature. Returns the average once the configured number of
+    /// frames is in, else `None`. A frame that fails drops the partial average.
+    pub fn feed<Px: Copy + Into<i32>>(
+        &mut self,
+        frame: &[Px],
+        temperature_c: S,
+    ) -> Result<Option<Averaged<S>>, Error> {
+        let t = temperature_c.check_range(
+            Quantity::Temperature,
+            crate::lit!(S, -20.0),
+            crate::lit!(S, 80.0),
+        );
+        let b = t.and_then(|_| find_boundary(frame, &self.boundary));
+        let (t, b) = match (t, b) {
+            (Ok(t), Ok(b)) => (t, b),
+            (Err(e), _) | (_, Err(e)) => {
+                self.count = 0;
+                return Err(e);
+            }
+        };
+        if self.count == 0 {
+            self.position_sum = 0;
+            self.position_squares = 0;
+            self.variance_sum = 0;
+            self.temperature_mean = t;
+        }
+        self.count += 1;
+        self.position_sum += i64::from(b.position);
+        self.position_squares += i128::from(b.position).pow(2);
+        self.variance_sum += i64::from(b.uncertainty).pow(2);
+        // Running mean keeps the temperature inside narrow fixed-point ranges.
+        let k = S::from_i32(i32::from(self.count))?;
+        self.temperature_mean = self
+            .temperature_mean
+            .add(t.sub(self.temperature_mean)?.div(k)?)?;
+        if self.count < self.frames {
+            return Ok(None);
+        }
+        let n = i64::from(self.count);
+        self.count = 0;
+        let position = i32::try_from((self.position_sum + n / 2).div_euclid(n))
+            .map_err(|_| Error::Overflow)?;
+        // Type B from each frame's noise, u(mean) = √(Σu²) / n; Type A from the
+        // frames' scatter, s / √n. The larger is kept: the per-frame estimate
+        // reads low on long-tailed edges, the scatter of a few frames is itself
+        // uncertain.
+        let type_b = (self.variance_sum.max(0) as u64).isqrt() as i64 / n;
+        let type_a = if n > 1 {
+            let (sum, n128) = (i128::from(self.position_sum), i128::from(n));
+            let ss = (self.position_squares - sum * sum / n128).max(0);
+            let var_mean = ss / (n128 * (n128 - 1));
+            i64::try_from((var_mean as u128).isqrt()).unwrap_or(i64::MAX)
+        } else {
+            0
+        };
+        let u = type_a.max(type_b);
+        Ok(Some(Averaged {
+            position,
+            position_uncertainty: i32::try_from(u).unwrap_or(i32::MAX),
+            temperature_c: self.temperature_mean,
+            boundary: b,
+            frames: u8::try_from(n).unwrap_or(u8::MAX),
+        }))
+    }
+
+    /// Feeds a frame and, when an average is complete, reads it.
+    pub fn measure<Px: Copy + Into<i32>>(
+        &mut self,
+        frame: &[Px],
+        temperature_c: S,
+    ) -> Result<Option<Reading<S>>, Error> {
+        match self.feed(frame, temperature_c)? {
+            Some(avg) => self.read(&avg).map(Some),
+            None => Ok(None),
+        }
+    }
+
+    /// Index the geometry gives for a position at a temperature, uncorrected,
+    /// with its derivative per pixel.
+    fn raw_index(&self, position: i32, temperature_c: S) -> Result<(S, S), Error> {
+        let n_p = self.prism.index(self.wavelength, temperature_c)?;
+        self.geometry.sample_index_and_slope(position, n_p)
+    }
+
+    /// nD at 20 °C from the corrected index at the LED wavelength.
+    fn to_nd20(&self, index_at_led: S, temperature_c: S) -> Result<(S, S), Error> {
+        let nd = self.dispersion.to_nd(index_at_led, self.wavelength)?;
+        let nd20 = self.compensation.to_reference(nd, temperature_c)?;
+        Ok((nd, nd20))
+    }
+
+    /// nD at 20 °C for a position and temperature through the whole chain.
+    fn chain(&self, position: i32, temperature_c: S) -> Result<S, Error> {
+        let (raw, _) = self.raw_index(position, temperature_c)?;
+        Ok(self.to_nd20(self.correction.apply(raw)?, temperature_c)?.1)
+    }
+
+    /// Runs an average through the chain: index, nD, nD at 20 °C, scale value,
+    /// uncertainty; updates the settling window.
+    pub fn read(&mut self, avg: &Averaged<S>) -> Result<Reading<S>, Error> {
+        let t = avg.temperature_c;
+        let (raw, per_px) = self.raw_index(avg.position, t)?;
+        let index_at_led = self.correction.apply(raw)?;
+        let (nd, nd20) = self.to_nd20(index_at_led, t)?;
+        let nd20 = check_index(nd20)?;
+        let scale_value = self.scale.value_at(nd20)?;
+
+        // Sensitivities: nD20 per index at the LED (central difference), per
+        // pixel (analytic geometry × correction slope × that), per kelvin (the
+        // whole chain, prism included, central difference over ±0.5 K).
+        let h = crate::lit!(S, 1e-4);
+        let up = self.to_nd20(index_at_led.add(h)?, t)?.1;
+        let down = self.to_nd20(index_at_led.sub(h)?, t)?.1;
+        let d_led = up.sub(down)?.div(h.mul(S::TWO)?)?;
+        let d_px = per_px.mul(self.correction.slope(raw)?)?.mul(d_led)?;
+        let u_px = S::from_ratio(avg.position_uncertainty, SUBPIXEL)?;
+        let term_px = d_px.mul(u_px)?.abs()?;
+        let ht = crate::lit!(S, 0.5);
+        let warm = self.chain(avg.position, t.add(ht)?)?;
+        let cool = self.chain(avg.position, t.sub(ht)?)?;
+        let term_t = warm.sub(cool)?.mul(self.u_temperature)?.abs()?;
+        let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
+
+        let stable = self.settle(nd20, t)?;
+        Ok(Reading {
+            nd20,
+            nd,
+            scale_value,
+            index_at_led,
+            raw_index: raw,
+            temperature_c: t,
+            uncertainty,
+            stable,
+            averaged: *avg,
+        })
+    }
+
+    /// Pushes a reading into the settling window; settled when the window is full
+    /// and both spreads are inside their bands.
+    fn settle(&mut self, nd20: S, t: S) -> Result<bool, Error> {
+        if let Some(slot) = self.history.get_mut(self.history_next) {
+            *slot = (nd20, t);
+        }
+        self.history_next = (self.history_next + 1) % self.settle_len;
+        self.history_len = (self.history_len + 1).min(self.settle_len);
+        if self.history_len < self.settle_len {
+            return Ok(false);
+        }
+        let window = self.history.get(..self.settle_len).unwrap_or(&[]);
+        let spread = |pick: fn(&(S, S)) -> S| -> Result<S, Error> {
+            let lo = window.iter().map(pick).fold(S::MAX, S::min);
+            let hi = window.iter().map(pick).fold(lo, S::max);
+            hi.sub(lo)
+        };
+        Ok(spread(|r| r.0)? <= self.band_nd && spread(|r| r.1)? <= self.band_c)
+    }
+
+    /// Zero with distilled water: pairs the average's uncorrected index with the
+    /// water model's index at the LED wavelength and the average's temperature,
+    /// and sets an offset correction. Remembered for a following span.
+    pub fn zero_with_water<M: Medium<S> + ?Sized>(
+        &mut self,
+        avg: &Averaged<S>,
+        water: &M,
+    ) -> Result<Correction<S>, Error> {
+        let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
+        let reference = calibration::water_reference(water, self.wavelength, avg.temperature_c)?;
+        let standard = Standard {
+            measured,
+            reference,
+        };
+        let c = calibration::zero(standard)?;
+        self.zero_standard = Some(standard);
+        self.correction = c;
+        Ok(c)
+    }
+
+    /// Span with a standard of known nD at 20 °C (after [`Self::zero_with_water`]),
+    /// brought to the LED wavelength and temperature through the standard's own
+    /// dispersion and temperature models; sets an offset-and-scale correction.
+    /// Without a previous zero: `OutOfRange(RefractiveIndex)`.
+    pub fn span_with_standard<W2, C2>(
+        &mut self,
+        avg: &Averaged<S>,
+        nd20: S,
+        dispersion: &W2,
+        compensation: &C2,
+    ) -> Result<Correction<S>, Error>
+    where
+        W2: WavelengthCorrection<S> + ?Sized,
+        C2: SampleCompensation<S> + ?Sized,
+    {
+        let zero = self
+            .zero_standard
+            .ok_or(Error::OutOfRange(Quantity::RefractiveIndex))?;
+        let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
+        let reference = calibration::standard_reference(
+            nd20,
+            dispersion,
+            compensation,
+            self.wavelength,
+            avg.temperature_c,
+        )?;
+        let c = calibration::zero_and_span(
+            zero,
+            Standard {
+                measured,
+                reference,
+            },
+        )?;
+        self.correction = c;
+        Ok(c)
+    }
+}
+
+/// `√(a² + b² + c²)` scaled by the largest term, so that tiny uncertainties keep
+/// their digits in fixed point and large ones do not overflow.
+fn root_sum_square<S: Scalar>(a: S, b: S, c: S) -> Result<S, Error> {
+    let m = a.abs()?.max(b.abs()?).max(c.abs()?);
+    if m == S::ZERO {
+        return Ok(S::ZERO);
+    }
+    let sum = a
+        .div(m)?
+        .square()?
+        .add(b.div(m)?.square()?)?
+        .add(c.div(m)?.square()?)?;
+    m.mul(sum.sqrt()?)
+}

@@ -1,0 +1,315 @@
+//! The refractometer chain fed arbitrary frames, configurations, descriptions and
+//! numbers (NaN and infinities included): typed errors, never a panic, and every
+//! `Ok` is a sane value.
+
+mod support;
+
+use embedded_optics::medium::Medium;
+use embedded_optics::refractometer::boundary::*;
+use embedded_optics::refractometer::calibration::{self, Standard};
+use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
+use embedded_optics::refractometer::geometry::{Correction, Geometry, GeometryDescription};
+use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
+use embedded_optics::{Error, Scalar};
+use fixed::types::{I8F24, I32F32};
+use proptest::prelude::*;
+use support::*;
+
+/// Any float, the awkward ones (NaN, infinities, signed zero, extremes) often,
+/// and the ranges the chain works in (indices, wavelengths, pixels).
+fn any_f64() -> impl Strategy<Value = f64> {
+    let awkward = proptest::sample::select(vec![
+        f64::NAN,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        -0.0,
+        f64::MAX,
+        f64::MIN_POSITIVE,
+    ]);
+    prop_oneof![
+        proptest::num::f64::ANY,
+        awkward,
+        -5.0..5.0f64,
+        1.0..2.0f64,
+        0.0..5000.0f64,
+    ]
+}
+
+fn direction() -> impl Strategy<Value = EdgeDirection> {
+    prop_oneof![
+        Just(EdgeDirection::DarkToBright),
+        Just(EdgeDirection::BrightToDark)
+    ]
+}
+
+fn config() -> impl Strategy<Value = BoundaryConfig> {
+    (
+        direction(),
+        any::<u8>(),
+        any::<u16>(),
+        any::<u16>(),
+        any::<u8>(),
+        any::<u8>(),
+    )
+        .prop_map(
+            |(direction, smoothing, min_contrast, saturation_level, plateau, opposite_percent)| {
+                BoundaryConfig {
+                    direction,
+                    smoothing,
+                    min_contrast,
+                    saturation_level,
+                    plateau,
+                    opposite_percent,
+                }
+            },
+        )
+}
+
+/// Frames of any length around the accepted range: noise, steps, spikes.
+fn frame_u16() -> impl Strategy<Value = Vec<u16>> {
+    prop_oneof![
+        proptest::collection::vec(any::<u16>(), 0..4200),
+        (64usize..600, 0usize..600, any::<u16>(), any::<u16>())
+            .prop_map(|(n, at, a, b)| { (0..n).map(|i| if i < at { a } else { b }).collect() }),
+        (
+            64usize..600,
+            proptest::collection::vec((0usize..600, any::<u16>()), 0..8)
+        )
+            .prop_map(|(n, spikes)| {
+                let mut f = vec![300u16; n];
+                f.iter_mut().skip(n / 2).for_each(|p| *p = 3000);
+                for (i, v) in spikes {
+                    if let Some(p) = f.get_mut(i) {
+                        *p = v;
+                    }
+                }
+                f
+            }),
+    ]
+}
+
+fn check_boundary(frame_len: usize, r: Result<Boundary, Error>) {
+    match r {
+        Ok(b) => {
+            let px = b.position as f64 / SUBPIXEL as f64;
+            assert!(px >= 0.0 && px <= frame_len as f64, "{b:?}");
+            assert!(b.bright_level >= b.dark_level, "{b:?}");
+            assert!(b.uncertainty >= 0, "{b:?}");
+        }
+        Err(Error::Boundary(_)) | Err(Error::OutOfRange(_)) => {}
+        Err(e) => panic!("unexpected error {e:?}"),
+    }
+}
+
+fn geometry_desc() -> impl Strategy<Value = GeometryDescription> {
+    (any_f64(), any_f64(), any_f64(), any_f64(), any::<bool>()).prop_map(|(p, f, a, apex, r)| {
+        GeometryDescription {
+            pixel_pitch_um: p,
+            focal_length_mm: f,
+            axis_offset_px: a,
+            apex_angle_deg: apex,
+            reversed: r,
+        }
+    })
+}
+
+fn geometry_in<S: Scalar>(d: &GeometryDescription, position: i32, np: f64) {
+    let Ok(g) = Geometry::<S>::new(d) else { return };
+    let Ok(np) = S::from_f64(np) else { return };
+    if let Ok((n, slope)) = g.sample_index_and_slope(position, np) {
+        assert!(n.to_f64() >= 1.0 && n < np, "{n:?} {np:?}");
+        assert!(slope.is_finite());
+    }
+    let _ = g.exit_sine(position);
+}
+
+fn numbers_in<S: Scalar>(a: f64, b: f64, c: f64, d: f64) {
+    let (Ok(a), Ok(b), Ok(c), Ok(d)) = (
+        S::from_f64(a),
+        S::from_f64(b),
+        S::from_f64(c),
+        S::from_f64(d),
+    ) else {
+        return;
+    };
+    let corr = Correction {
+        c0: b,
+        c1: c,
+        c2: d,
+    };
+    if let Ok(n) = corr.apply(a) {
+        assert!((1.0..=4.5).contains(&n.to_f64()));
+    }
+    let _ = corr.slope(a);
+    let s1 = Standard {
+        measured: a,
+        reference: b,
+    };
+    let s2 = Standard {
+        measured: c,
+        reference: d,
+    };
+    let s3 = Standard {
+        measured: b,
+        reference: a,
+    };
+    for k in [
+        calibration::zero(s1),
+        calibration::zero_and_span(s1, s2),
+        calibration::three_standards(s1, s2, s3),
+    ]
+    .into_iter()
+    .flatten()
+    {
+        assert!(k.c1.is_finite() && k.c0.is_finite());
+    }
+    let _ = calibration::water_reference(&LinearWater, a, b);
+    let _ = calibration::standard_reference(a, &LinearSample, &LinearSample, b, c);
+}
+
+fn instrument_desc() -> impl Strategy<Value = InstrumentDescription> {
+    (
+        geometry_desc(),
+        config(),
+        any_f64(),
+        any::<u8>(),
+        (any_f64(), any_f64()),
+        any::<u8>(),
+        (any_f64(), any_f64()),
+    )
+        .prop_map(
+            |(geometry, boundary, led, frames, (ut, uc), settle, (bn, bc))| InstrumentDescription {
+                geometry,
+                boundary,
+                led_wavelength_nm: led,
+                frames_per_reading: frames,
+                temperature_uncertainty_c: ut,
+                calibration_uncertainty: uc,
+                settle_readings: settle,
+                settle_band_nd: bn,
+                settle_band_c: bc,
+            },
+        )
+}
+
+fn instrument_in<S: Scalar>(d: &InstrumentDescription, frame: &[u16], t: f64) {
+    let Ok(mut inst) =
+        Instrument::<S, _, _, _, _>::new(d, LinearGlass, LinearSample, LinearSample, LinearSample)
+    else {
+        return;
+    };
+    let Ok(t) = S::from_f64(t) else { return };
+    for _ in 0..3 {
+        if let Ok(Some(r)) = inst.measure(frame, t) {
+            assert!((1.0..=4.5).contains(&r.nd20.to_f64()));
+            assert!(r.uncertainty >= S::ZERO);
+        }
+        if let Ok(Some(a)) = inst.feed(frame, t) {
+            let _ = inst.zero_with_water(&a, &LinearWater);
+            let _ = inst.span_with_standard(&a, t, &LinearSample, &LinearSample);
+            let _ = inst.read(&a);
+        }
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(512))]
+
+    #[test]
+    fn boundary_finder_is_total(f in frame_u16(), cfg in config()) {
+        check_boundary(f.len(), find_boundary(&f, &cfg));
+        let bytes: Vec<u8> = f.iter().map(|&v| (v >> 8) as u8).collect();
+        check_boundary(bytes.len(), find_boundary(&bytes, &cfg));
+    }
+
+    #[test]
+    fn boundary_finder_default_config_is_total(f in frame_u16(), dir in direction()) {
+        check_boundary(f.len(), find_boundary(&f, &BoundaryConfig::twelve_bit(dir)));
+    }
+
+    #[test]
+    fn corrections_are_total(f in frame_u16(), g in frame_u16(), sat in any::<u16>()) {
+        let mut frame = f.clone();
+        let n = frame.len();
+        let dark: Vec<u16> = g.iter().copied().cycle().take(n).collect();
+        let mut gains = vec![0u16; n];
+        let dark_opt = (!g.is_empty()).then_some(&dark[..]);
+        if flat_field_gains(&f, dark_opt, &mut gains).is_ok() {
+            let _ = correct_frame(&mut frame, dark_opt, Some(&gains), sat);
+        }
+        let _ = correct_frame(&mut frame, Some(&g), None, sat);
+    }
+
+    #[test]
+    fn geometry_is_total(d in geometry_desc(), pos in any::<i32>(), np in any_f64()) {
+        geometry_in::<f32>(&d, pos, np);
+        geometry_in::<f64>(&d, pos, np);
+        geometry_in::<I32F32>(&d, pos, np);
+        geometry_in::<I8F24>(&d, pos, np);
+    }
+
+    #[test]
+    fn correction_and_calibration_are_total(a in any_f64(), b in any_f64(), c in any_f64(), d in any_f64()) {
+        numbers_in::<f32>(a, b, c, d);
+        numbers_in::<f64>(a, b, c, d);
+        numbers_in::<I32F32>(a, b, c, d);
+        numbers_in::<I8F24>(a, b, c, d);
+    }
+
+    #[test]
+    fn instrument_is_total(d in instrument_desc(), f in frame_u16(), t in any_f64()) {
+        instrument_in::<f32>(&d, &f, t);
+        instrument_in::<f64>(&d, &f, t);
+        instrument_in::<I32F32>(&d, &f, t);
+        instrument_in::<I8F24>(&d, &f, t);
+    }
+
+    #[test]
+    fn instrument_with_a_real_design_is_total(f in frame_u16(), t in any_f64()) {
+        instrument_in::<f64>(&DESCRIPTION, &f, t);
+        instrument_in::<I32F32>(&DESCRIPTION, &f, t);
+    }
+}
+
+proptest! {
+    // Rendering costs thousands of Fresnel evaluations per frame: fewer cases,
+    // short frames.
+    #![proptest_config(ProptestConfig::with_cases(48))]
+
+    #[test]
+    fn forward_model_is_total(
+        g in geometry_desc(),
+        nums in proptest::collection::vec(any_f64(), 9),
+        adc in any::<u16>(),
+        len in 0usize..200,
+        seed in any::<u64>(),
+    ) {
+        let scene = SensorScene {
+            geometry: g,
+            led_centre_nm: nums[0],
+            led_fwhm_nm: nums[1],
+            blur_px: nums[2],
+            full_scale: nums[3],
+            dark_level: nums[4],
+            read_noise: nums[5],
+            shot_noise_per_count: nums[6],
+            response_spread: nums[7],
+            adc_max: adc,
+        };
+        let sample = SampleState { index: nums[8], dispersion_per_nm: -3e-5, temperature_c: 20.0 };
+        let mut frame = vec![0u16; len];
+        let r = render(&scene, &LinearGlass, &sample, &mut Rng::new(seed), &mut frame);
+        if r.is_ok() {
+            prop_assert!(frame.iter().all(|&p| p <= adc));
+        }
+        // The same scene in fixed point: an error or a frame, never a panic.
+        let s32 = SampleState {
+            index: I32F32::from_num(1.4),
+            dispersion_per_nm: I32F32::from_num(-3e-5),
+            temperature_c: I32F32::from_num(20),
+        };
+        let mut short = vec![0u16; len.min(80)];
+        let _ = render(&scene, &LinearGlass, &s32, &mut Rng::new(seed), &mut short);
+        let _ = LinearGlass.index(I8F24::from_num(1), I8F24::from_num(1));
+    }
+}
