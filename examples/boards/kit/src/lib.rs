@@ -173,3 +173,17 @@ fn no_panic(_: &core::panic::PanicInfo) -> ! {
     // the optimiser removed every call to this handler.
     unsafe { reachable_panic_in_board_image() }
 }
+
+/// Ends the image: QEMU exits with success or failure (semihosting), a real
+/// board without a debugger sleeps.
+pub fn finish(ok: bool) -> ! {
+    use cortex_m_semihosting::debug;
+    debug::exit(if ok {
+        debug::EXIT_SUCCESS
+    } else {
+        debug::EXIT_FAILURE
+    });
+    loop {
+        cortex_m::asm::wfi();
+    }
+}

@@ -4,12 +4,8 @@
 #![no_main]
 
 use cortex_m_rt::entry;
-use cortex_m_semihosting::debug::{EXIT_SUCCESS, exit};
 
 #[entry]
 fn main() -> ! {
-    let mut p = cortex_m::Peripherals::take().unwrap_or_else(|| loop {});
-    board_kit::bench::run(&mut p.SYST);
-    exit(EXIT_SUCCESS);
-    loop {}
+    board_kit::bench::main()
 }

@@ -8,7 +8,6 @@
 use board_kit::{Tabled, check, rows::OUTPUT_NAMES};
 use core::cell::UnsafeCell;
 use cortex_m_rt::entry;
-use cortex_m_semihosting::debug::{EXIT_FAILURE, EXIT_SUCCESS, exit};
 use cortex_m_semihosting::hio;
 use critical_section::RestoreState;
 use fixed::types::{I8F24, I32F32};
@@ -90,6 +89,5 @@ unsafe impl defmt::Logger for SemihostingLogger {
 #[entry]
 fn main() -> ! {
     let ok = check_type::<I8F24>("I8F24") & check_type::<I32F32>("I32F32");
-    exit(if ok { EXIT_SUCCESS } else { EXIT_FAILURE });
-    loop {}
+    board_kit::finish(ok)
 }

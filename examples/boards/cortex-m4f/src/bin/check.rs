@@ -7,7 +7,6 @@
 
 use board_kit::{Tabled, check, rows::OUTPUT_NAMES};
 use cortex_m_rt::entry;
-use cortex_m_semihosting::debug::{EXIT_FAILURE, EXIT_SUCCESS, exit};
 use cortex_m_semihosting::hprintln;
 use fixed::types::I8F24;
 
@@ -48,6 +47,5 @@ fn check_type<S: Tabled>(name: &str, unit: &str) -> bool {
 #[entry]
 fn main() -> ! {
     let ok = check_type::<f32>("f32", "x 1e-9") & check_type::<I8F24>("I8F24", "LSB");
-    exit(if ok { EXIT_SUCCESS } else { EXIT_FAILURE });
-    loop {}
+    board_kit::finish(ok)
 }
