@@ -96,6 +96,34 @@ fn expect<S: Scalar>(
     writeln!(out, "];").unwrap();
 }
 
+/// Pixels of the synthetic line-sensor frame.
+const PIXELS: usize = 1024;
+
+/// A synthetic 12-bit line-sensor frame for per-pixel items (boundary finder,
+/// focus metric): invented scenario, a juice sample (nD 1.3811) on a 1.72 prism,
+/// the pixels spanning incidences critical angle ± 3°, intensity ∝ unpolarised
+/// Fresnel reflectance (bright beyond the critical angle), plus a little
+/// deterministic noise. The critical angle falls on pixel 512.
+fn frame(out: &mut String) {
+    let (n_prism, n_sample) = (1.72f64, 1.3811f64);
+    let critical = (n_sample / n_prism).asin();
+    let span = 6f64.to_radians();
+    let mut noise: u32 = 0x2545_F491;
+    writeln!(out, "pub static FRAME: [u16; {PIXELS}] = [").unwrap();
+    for p in 0..PIXELS {
+        let incidence = critical + span * (p as f64 / PIXELS as f64 - 0.5);
+        let r = embedded_optics::fresnel::reflectance(n_prism, n_sample, incidence)
+            .expect("valid incidence")
+            .unpolarised;
+        noise ^= noise << 13;
+        noise ^= noise >> 17;
+        noise ^= noise << 5;
+        let counts = 3600.0 * r + 200.0 + f64::from(noise % 17) - 8.0;
+        writeln!(out, "    {},", counts.round() as u16).unwrap();
+    }
+    writeln!(out, "];").unwrap();
+}
+
 fn main() {
     println!("cargo:rerun-if-changed=build.rs");
     println!("cargo:rerun-if-changed=src/rows.rs");
@@ -122,6 +150,7 @@ fn main() {
         })
         .collect();
     expect(&mut out, "F64", "f64", &wide, |x| format!("{x:?}"));
+    frame(&mut out);
     let path = std::path::Path::new(&std::env::var("OUT_DIR").unwrap()).join("table.rs");
     std::fs::write(path, out).unwrap();
 }

@@ -68,6 +68,14 @@ pub fn fresnel_from_angle<S: Tabled>(i: usize) {
     black_box(reflectance(r.n_prism, r.n_sample, r.incidence).ok());
 }
 
+/// The floor of any per-pixel pass: reads every pixel of the 1024-pixel frame
+/// once and adds it up (`units: 1024`). Per-pixel items (boundary finder, focus
+/// metric) cost this plus their own work.
+pub fn frame_pass(_: usize) {
+    let sum: u32 = crate::frame().iter().map(|&p| u32::from(p)).sum();
+    black_box(sum);
+}
+
 /// Baseline, written the straightforward way with `libm` f32 trigonometry and no
 /// checks: nD = n_prism · sin θc.
 pub fn baseline_index_from_angle(i: usize) {
@@ -156,13 +164,21 @@ macro_rules! per_type {
 /// Items per number type.
 pub const PER_TYPE: usize = 6;
 
-/// Everything measured: the crate's routines in three number types, then the
-/// `libm` f32 baselines. The order is the flash probes' index.
-pub const ITEMS: [Item; 3 * PER_TYPE + 4] = {
+/// Items after the per-type ones: the frame floor and the `libm` baselines.
+const OTHERS: usize = 5;
+
+/// Everything measured: the crate's routines in three number types, the frame
+/// floor, then the `libm` f32 baselines. The order is the flash probes' index.
+pub const ITEMS: [Item; 3 * PER_TYPE + OTHERS] = {
     let a = per_type!(I8F24, "I8F24");
     let b = per_type!(I32F32, "I32F32");
     let c = per_type!(f32, "f32");
     let base = [
+        Item {
+            name: "frame pass: read 1024 pixels/u16",
+            units: 1024,
+            run: frame_pass,
+        },
         Item {
             name: "baseline sin: angle -> nD/libm f32",
             units: 1,
@@ -184,7 +200,7 @@ pub const ITEMS: [Item; 3 * PER_TYPE + 4] = {
             run: baseline_pixel_to_index,
         },
     ];
-    let mut out = [base[0]; 3 * PER_TYPE + 4];
+    let mut out = [base[0]; 3 * PER_TYPE + OTHERS];
     let mut k = 0;
     while k < PER_TYPE {
         out[k] = a[k];
@@ -193,7 +209,7 @@ pub const ITEMS: [Item; 3 * PER_TYPE + 4] = {
         k += 1;
     }
     let mut j = 0;
-    while j < 4 {
+    while j < OTHERS {
         out[3 * PER_TYPE + j] = base[j];
         j += 1;
     }

@@ -7,6 +7,8 @@
 pub mod bench;
 pub mod items;
 pub mod meter;
+#[cfg(feature = "probe")]
+pub mod probe;
 pub mod rows;
 
 use embedded_optics::{Error, Scalar};
@@ -117,6 +119,18 @@ pub fn row<S: Tabled>(i: usize) -> Row<S> {
             cosine: embedded_optics::lit!(S, 0.87758),
         })
     }
+}
+
+/// The synthetic 1024-pixel frame made by `build.rs` (critical angle on pixel
+/// 512), for per-pixel items. With the `probe` feature an empty frame, so that
+/// flash probes do not carry 2 KiB of test data.
+#[inline(always)]
+pub fn frame() -> &'static [u16] {
+    #[cfg(not(feature = "probe"))]
+    let f: &'static [u16] = &table::FRAME;
+    #[cfg(feature = "probe")]
+    let f: &'static [u16] = &[];
+    core::hint::black_box(f)
 }
 
 /// Outcome of [`check`].
