@@ -153,8 +153,7 @@ pub fn check<S: Tabled>() -> Checked {
         worst: 0,
         failure: None,
     };
-    for (i, (inp, exp)) in S::inputs().iter().zip(S::expected().iter()).enumerate() {
-        let _ = inp;
+    for (i, exp) in S::expected().iter().enumerate() {
         let got = rows::outputs(&row::<S>(i));
         for (j, (g, e)) in got.iter().zip(exp.iter()).enumerate() {
             let ok = match (g, e) {
