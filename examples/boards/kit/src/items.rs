@@ -33,7 +33,8 @@ pub struct Item {
     pub run: fn(usize),
 }
 
-/// Loop and call overhead: reads a row and does nothing. Subtracted from every item.
+/// Loop and call overhead: reads a row and does nothing. The report subtracts it
+/// from the items of the same number type (and the f32 one from the baselines).
 pub fn empty<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
 }
