@@ -1,0 +1,40 @@
+//! The benchmark run shared by the per-core images: calibration, then every item
+//! of [`ITEMS`](crate::items::ITEMS), printed over semihosting one line each for
+//! `.ci/bench-report`:
+//!
+//! `cal|<nop instructions>|<ticks of the nop block>|<ticks of an empty call>|<calls>`
+//! `item|<name>|<units>|<calls>|<ticks>|<stack bytes>`
+
+use crate::items::ITEMS;
+use crate::{ROWS, meter};
+use cortex_m_semihosting::hprintln;
+
+/// Calls per item: every table row, four times.
+const CALLS: usize = 4 * ROWS;
+
+fn nothing(_: usize) {}
+
+/// The whole benchmark image: measures, prints, ends QEMU.
+pub fn main() -> ! {
+    let ok = match cortex_m::Peripherals::take() {
+        Some(mut p) => {
+            run(&mut p.SYST);
+            true
+        }
+        None => false,
+    };
+    crate::finish(ok)
+}
+
+/// Measures and prints everything. `syst` is the core's SysTick.
+pub fn run(syst: &mut cortex_m::peripheral::SYST) {
+    meter::start(syst);
+    let cal = meter::ticks(meter::nops_1000, CALLS);
+    let call = meter::ticks(nothing, CALLS);
+    hprintln!("cal|{}|{}|{}|{}", 1000 * CALLS, cal, call, CALLS);
+    for item in ITEMS.iter() {
+        let t = meter::ticks(item.run, CALLS);
+        let s = meter::stack_bytes(item.run, ROWS);
+        hprintln!("item|{}|{}|{}|{}|{}", item.name, item.units, CALLS, t, s);
+    }
+}

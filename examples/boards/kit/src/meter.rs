@@ -1,0 +1,87 @@
+//! Cost without a cycle counter. Under QEMU `-icount shift=5` every executed
+//! instruction advances virtual time by 32 ns, and SysTick (clocked from the core)
+//! counts that time, so a tick count is proportional to instructions executed and
+//! identical on every run. The factor is measured in the same image with a block
+//! of `nop`s ([`nops_1000`]).
+
+use core::hint::black_box;
+use cortex_m::peripheral::SYST;
+use cortex_m::peripheral::syst::SystClkSource;
+
+/// SysTick counts down from this 24-bit reload.
+const RELOAD: u32 = 0x00FF_FFFF;
+
+/// Starts SysTick free-running from the core clock, no interrupt.
+pub fn start(syst: &mut SYST) {
+    syst.set_clock_source(SystClkSource::Core);
+    syst.set_reload(RELOAD);
+    syst.clear_current();
+    syst.enable_counter();
+}
+
+/// SysTick ticks spent by `calls` calls of `run(i)` for i = 0..calls. Must stay
+/// below 2^24 ticks (one wrap at most); callers keep `calls` small.
+#[inline(never)]
+pub fn ticks(run: fn(usize), calls: usize) -> u32 {
+    let run = black_box(run);
+    let start = SYST::get_current();
+    for i in 0..calls {
+        run(black_box(i));
+    }
+    let end = SYST::get_current();
+    start.wrapping_sub(end) & RELOAD
+}
+
+/// Exactly 1000 `nop`s: the calibration block.
+#[inline(never)]
+pub fn nops_1000(_: usize) {
+    // SAFETY: `nop` has no effect on memory or registers.
+    unsafe { core::arch::asm!(".rept 1000", "nop", ".endr", options(nomem, nostack)) }
+}
+
+/// Fill pattern for the stack painter.
+const PAINT: u32 = 0xC0FF_EE55;
+
+unsafe extern "C" {
+    /// First free RAM word after .data/.bss (cortex-m-rt): the stack may grow down to here.
+    static __sheap: u32;
+}
+
+fn stack_floor() -> usize {
+    core::ptr::addr_of!(__sheap) as usize
+}
+
+/// Paints the free stack below this function's own frame.
+#[inline(never)]
+fn paint() {
+    let top = cortex_m::register::msp::read() as usize - 16;
+    let mut a = stack_floor();
+    while a < top {
+        // SAFETY: [floor, sp - 16) is unused stack, word aligned, in RAM.
+        unsafe { core::ptr::write_volatile(a as *mut u32, PAINT) };
+        a += 4;
+    }
+}
+
+/// Lowest address written since [`paint`].
+fn high_water() -> usize {
+    let mut a = stack_floor();
+    // SAFETY: reads of the same painted region; stops at the first touched word.
+    while unsafe { core::ptr::read_volatile(a as *const u32) } == PAINT {
+        a += 4;
+    }
+    a
+}
+
+/// Stack bytes used below the caller's frame by `run(i)` for i = 0..calls: the
+/// deepest of those calls, plus the few bytes of this function's call.
+#[inline(never)]
+pub fn stack_bytes(run: fn(usize), calls: usize) -> u32 {
+    paint();
+    let sp = cortex_m::register::msp::read() as usize;
+    let run = black_box(run);
+    for i in 0..calls {
+        run(black_box(i));
+    }
+    sp.saturating_sub(high_water()) as u32
+}
