@@ -164,8 +164,9 @@ pub(crate) const fn sin_cos(theta: i128, iters: usize) -> (i128, i128) {
     }
 }
 
-/// atan2(y, x) in Q61 for two values in the same (any) scale; `None` for (0, 0).
-pub(crate) const fn atan2(y: i128, x: i128) -> Option<i128> {
+/// atan2(y, x) in Q61 for two values in the same (any) scale, resolved by `iters`
+/// CORDIC steps (see [`iterations`]); `None` for (0, 0).
+pub(crate) const fn atan2(y: i128, x: i128, iters: usize) -> Option<i128> {
     if x == 0 && y == 0 {
         return None;
     }
@@ -191,7 +192,7 @@ pub(crate) const fn atan2(y: i128, x: i128) -> Option<i128> {
     };
     let mut z: i64 = 0;
     let mut i = 0;
-    while i < 61 {
+    while i < iters {
         let dx = ys >> i;
         let dy = xs >> i;
         if ys > 0 {
@@ -219,28 +220,39 @@ pub(crate) const fn sqrt_q61(v: i128) -> Option<i128> {
     Some(((r2 + 1) >> 1) as i128)
 }
 
-/// asin of a Q61 value in [-1, 1], in Q61.
-pub(crate) const fn asin(s: i128) -> Option<i128> {
+/// sqrt(1 − v²) in Q61 for a Q61 value |v| ≤ 1.
+///
+/// Formats with at most 28 fractional bits need far less than Q61: there it works
+/// in Q30 with `u64`, which spares a core without a 64-bit multiplier the 128-bit
+/// multiply and square root.
+const fn complement(v: i128, frac: u32) -> i128 {
+    if frac <= 28 {
+        let v30 = (v >> (Q - 30)) as i64;
+        let r = (1i64 << 60) - v30 * v30;
+        let r = if r < 0 { 0 } else { r as u64 };
+        (r.isqrt() as i128) << (Q - 30)
+    } else {
+        match sqrt_q61(ONE_Q61 - mul_q61(v, v)) {
+            Some(c) => c,
+            None => 0,
+        }
+    }
+}
+
+/// asin of a Q61 value in [-1, 1], in Q61, for a format with `frac` fractional bits.
+pub(crate) const fn asin(s: i128, frac: u32) -> Option<i128> {
     if s > ONE_Q61 || s < -ONE_Q61 {
         return None;
     }
-    let c = match sqrt_q61(ONE_Q61 - mul_q61(s, s)) {
-        Some(c) => c,
-        None => 0,
-    };
-    atan2(s, c)
+    atan2(s, complement(s, frac), iterations(frac))
 }
 
-/// acos of a Q61 value in [-1, 1], in Q61.
-pub(crate) const fn acos(c: i128) -> Option<i128> {
+/// acos of a Q61 value in [-1, 1], in Q61, for a format with `frac` fractional bits.
+pub(crate) const fn acos(c: i128, frac: u32) -> Option<i128> {
     if c > ONE_Q61 || c < -ONE_Q61 {
         return None;
     }
-    let s = match sqrt_q61(ONE_Q61 - mul_q61(c, c)) {
-        Some(s) => s,
-        None => 0,
-    };
-    atan2(s, c)
+    atan2(complement(c, frac), c, iterations(frac))
 }
 
 /// Natural logarithm of a positive Q61 value (any magnitude up to 2^126), in Q61.

@@ -105,13 +105,16 @@ macro_rules! fixed_scalar {
                 narrow_q61(fm::sin_cos(wide(self), fm::iterations($frac)).0)
             }
             fn asin(self) -> Result<Self, Error> {
-                narrow_q61(fm::asin(wide(self)).ok_or(Error::MathDomain)?)
+                narrow_q61(fm::asin(wide(self), $frac).ok_or(Error::MathDomain)?)
             }
             fn acos(self) -> Result<Self, Error> {
-                narrow_q61(fm::acos(wide(self)).ok_or(Error::MathDomain)?)
+                narrow_q61(fm::acos(wide(self), $frac).ok_or(Error::MathDomain)?)
             }
             fn atan2(self, x: Self) -> Result<Self, Error> {
-                narrow_q61(fm::atan2(wide(self), wide(x)).ok_or(Error::MathDomain)?)
+                narrow_q61(
+                    fm::atan2(wide(self), wide(x), fm::iterations($frac))
+                        .ok_or(Error::MathDomain)?,
+                )
             }
             fn ln(self) -> Result<Self, Error> {
                 narrow_q61(fm::ln(wide(self)).ok_or(Error::MathDomain)?)
