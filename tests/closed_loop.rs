@@ -35,13 +35,24 @@ fn average<S: Scalar>(
 
 /// Water zero and a 1.5000 span at 20 °C, on noiseless frames.
 fn calibrated<S: Scalar>() -> Chain<S> {
+    calibrated_with::<S>(None)
+}
+
+/// Water zero, a 1.5000 span and optionally a third standard, at 20 °C, on
+/// noiseless frames.
+fn calibrated_with<S: Scalar>(third: Option<f64>) -> Chain<S> {
     let mut rng = Rng::new(99);
     let mut inst = instrument::<S>();
     let a = average(&mut inst, water_at_led(20.0), 20.0, 0.0, &mut rng);
     inst.zero_with_water(&a, &LinearWater).unwrap();
     let a = average(&mut inst, sample_at_led(1.5, 20.0), 20.0, 0.0, &mut rng);
-    inst.span_with_standard(&a, S::from_f64(1.5).unwrap(), &LinearSample, &LinearSample)
+    inst.add_standard(&a, S::from_f64(1.5).unwrap(), &LinearSample, &LinearSample)
         .unwrap();
+    if let Some(nd20) = third {
+        let a = average(&mut inst, sample_at_led(nd20, 20.0), 20.0, 0.0, &mut rng);
+        inst.add_standard(&a, S::from_f64(nd20).unwrap(), &LinearSample, &LinearSample)
+            .unwrap();
+    }
     inst.restart();
     inst
 }
@@ -62,7 +73,11 @@ fn noiseless_grid() -> &'static Vec<(f64, f64, Vec<u16>)> {
 
 /// Largest |nD20 error| over the noiseless grid, calibrated in type `S`.
 fn worst_bias<S: Scalar>(verbose: bool) -> f64 {
-    let mut inst = calibrated::<S>();
+    worst_bias_with::<S>(verbose, None)
+}
+
+fn worst_bias_with<S: Scalar>(verbose: bool, third: Option<f64>) -> f64 {
+    let mut inst = calibrated_with::<S>(third);
     let mut worst: f64 = 0.0;
     for (nd20, t, f) in noiseless_grid() {
         let ts = S::from_f64(*t).unwrap();
@@ -102,6 +117,12 @@ fn bias_over_range_and_temperature_every_type() {
          I32F32 {i32f32_bias:.2e}"
     );
     assert!(f64_bias < 2e-5);
+    // With a third standard (nD 1.4200) the quadratic correction takes the
+    // curvature left by zero and span.
+    let three = worst_bias_with::<f64>(false, Some(1.42));
+    let three_i32f32 = worst_bias_with::<I32F32>(false, Some(1.42));
+    println!("three standards: f64 {three:.2e}, I32F32 {three_i32f32:.2e}");
+    assert!(three < 1e-5 && three_i32f32 < 1e-5);
     assert!(i32f32_bias < 2e-5);
     assert!(f32_bias < 2e-5);
 }

@@ -106,7 +106,7 @@
 //! shoot(1.4, &mut frame);
 //! let reading = inst.measure(&frame, 20.0).unwrap().unwrap();
 //! // Water zero alone leaves under 1e-4 here; a span standard
-//! // (`span_with_standard`) takes the rest.
+//! // (`add_standard`) takes the rest.
 //! assert!((reading.nd20 - 1.4).abs() < 1e-4);
 //! assert!(reading.uncertainty > 0.0 && !reading.stable);
 //! let b = reading.averaged.boundary;
@@ -204,7 +204,8 @@ pub struct Instrument<S, P, W, C, T> {
     compensation: C,
     scale: T,
     correction: Correction<S>,
-    zero_standard: Option<Standard<S>>,
+    /// Standards read since the last water zero (zero, span).
+    standards: [Option<Standard<S>>; 2],
     frames: u8,
     u_temperature: S,
     u_calibration: S,
@@ -258,7 +259,7 @@ where
             compensation,
             scale,
             correction: Correction::identity(),
-            zero_standard: None,
+            standards: [None, None],
             frames: d.frames_per_reading,
             u_temperature: described(
                 d.temperature_uncertainty_c,
@@ -477,16 +478,19 @@ where
             reference,
         };
         let c = calibration::zero(standard)?;
-        self.zero_standard = Some(standard);
+        self.standards = [Some(standard), None];
         self.correction = c;
         Ok(c)
     }
 
-    /// Span with a standard of known nD at 20 °C (after [`Self::zero_with_water`]),
-    /// brought to the LED wavelength and temperature through the standard's own
-    /// dispersion and temperature models; sets an offset-and-scale correction.
-    /// Without a previous zero: `OutOfRange(RefractiveIndex)`.
-    pub fn span_with_standard<W2, C2>(
+    /// A standard of known nD at 20 °C after [`Self::zero_with_water`], brought
+    /// to the LED wavelength and the average's temperature through the
+    /// standard's own dispersion and temperature models. The first standard after
+    /// a zero is the span: an offset-and-scale correction. The next one sets the
+    /// quadratic through all three (factory calibration over a wide range); each
+    /// further one replaces that third. Without a zero first:
+    /// `OutOfRange(RefractiveIndex)`.
+    pub fn add_standard<W2, C2>(
         &mut self,
         avg: &Averaged<S>,
         nd20: S,
@@ -497,9 +501,8 @@ where
         W2: WavelengthCorrection<S> + ?Sized,
         C2: SampleCompensation<S> + ?Sized,
     {
-        let zero = self
-            .zero_standard
-            .ok_or(Error::OutOfRange(Quantity::RefractiveIndex))?;
+        let missing = Error::OutOfRange(Quantity::RefractiveIndex);
+        let zero = self.standards[0].ok_or(missing)?;
         let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
         let reference = calibration::standard_reference(
             nd20,
@@ -508,13 +511,18 @@ where
             self.wavelength,
             avg.temperature_c,
         )?;
-        let c = calibration::zero_and_span(
-            zero,
-            Standard {
-                measured,
-                reference,
-            },
-        )?;
+        let new = Standard {
+            measured,
+            reference,
+        };
+        let c = match self.standards[1] {
+            Some(span) => calibration::three_standards(zero, span, new)?,
+            None => {
+                let c = calibration::zero_and_span(zero, new)?;
+                self.standards = [Some(zero), Some(new)];
+                c
+            }
+        };
         self.correction = c;
         Ok(c)
     }
