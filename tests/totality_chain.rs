@@ -206,7 +206,8 @@ fn instrument_in<S: Scalar>(d: &InstrumentDescription, frame: &[u16], t: f64) {
         }
         if let Ok(Some(a)) = inst.feed(frame, t) {
             let _ = inst.zero_with_water(&a, &LinearWater);
-            let _ = inst.span_with_standard(&a, t, &LinearSample, &LinearSample);
+            let _ = inst.add_standard(&a, t, &LinearSample, &LinearSample);
+            let _ = inst.add_standard(&a, t, &LinearSample, &LinearSample);
             let _ = inst.read(&a);
         }
     }

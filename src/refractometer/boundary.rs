@@ -486,6 +486,18 @@ fn plateau<P: Copy + Into<i32>>(pixels: &[P]) -> Plateau {
 /// above `saturation_level` before correction is set to `u16::MAX`, so the finder
 /// still sees it as saturated. Slices must all have the frame's length, else
 /// `OutOfRange(SensorFrame)`.
+///
+/// ```
+/// use embedded_optics::refractometer::boundary::{correct_frame, flat_field_gains};
+/// // A sensor whose odd pixels respond 10 % more, 100 counts of dark level.
+/// let dark = [100u16; 64];
+/// let reference: Vec<u16> = (0..64).map(|i| if i % 2 == 1 { 2300 } else { 2100 }).collect();
+/// let mut gains = [0u16; 64];
+/// let level = flat_field_gains(&reference, Some(&dark), &mut gains).unwrap();
+/// let mut frame = reference.clone();
+/// correct_frame(&mut frame, Some(&dark), Some(&gains), 4095).unwrap();
+/// assert!(frame.iter().all(|&p| p.abs_diff(level) <= 1));
+/// ```
 pub fn correct_frame(
     frame: &mut [u16],
     dark: Option<&[u16]>,

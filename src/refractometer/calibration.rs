@@ -107,6 +107,17 @@ pub fn zero<S: Scalar>(water: Standard<S>) -> Result<Correction<S>, Error> {
 
 /// Offset and scale from two standards (water zero and a span standard at least
 /// 0.02 apart).
+///
+/// ```
+/// use embedded_optics::refractometer::calibration::{zero_and_span, Standard};
+/// // Water read 1.33350 for 1.33290; a 1.50000 standard read 1.50080.
+/// let c = zero_and_span(
+///     Standard { measured: 1.3335f64, reference: 1.3329 },
+///     Standard { measured: 1.5008, reference: 1.5 },
+/// ).unwrap();
+/// assert!((c.apply(1.3335).unwrap() - 1.3329).abs() < 1e-12);
+/// assert!((c.apply(1.5008).unwrap() - 1.5).abs() < 1e-12);
+/// ```
 pub fn zero_and_span<S: Scalar>(
     zero: Standard<S>,
     span: Standard<S>,

@@ -39,11 +39,17 @@
 //! use embedded_optics::refractometer::geometry::GeometryDescription;
 //! use embedded_optics::refractometer::instrument::*;
 //!
-//! // Test doubles, not physics: a prism of fixed index, a sample without
-//! // dispersion or temperature dependence, and a scale that reads nD itself.
+//! // Test doubles, not physics: a prism of fixed index, water of fixed index,
+//! // a sample without dispersion or temperature dependence, and a scale that
+//! // reads nD itself.
 //! struct Glass;
 //! impl Medium<f64> for Glass {
 //!     fn index(&self, _: f64, _: f64) -> Result<f64, Error> { Ok(1.72) }
+//!     fn reference(&self) -> IndexReference { IndexReference::Air }
+//! }
+//! struct Water;
+//! impl Medium<f64> for Water {
+//!     fn index(&self, _: f64, _: f64) -> Result<f64, Error> { Ok(1.333) }
 //!     fn reference(&self) -> IndexReference { IndexReference::Air }
 //! }
 //! struct Plain;
@@ -59,9 +65,10 @@
 //!     fn unit(&self) -> &'static str { "nD" }
 //! }
 //!
+//! // An invented design: 512 pixels of 14 µm, 30 mm optics, apex 53.5°.
 //! const GEOMETRY: GeometryDescription = GeometryDescription {
-//!     pixel_pitch_um: 14.0, focal_length_mm: 40.0, axis_offset_px: 256.0,
-//!     apex_angle_deg: 56.0, reversed: false,
+//!     pixel_pitch_um: 14.0, focal_length_mm: 30.0, axis_offset_px: 256.0,
+//!     apex_angle_deg: 53.5, reversed: false,
 //! };
 //! const DESCRIPTION: InstrumentDescription = InstrumentDescription {
 //!     geometry: GEOMETRY,
@@ -76,21 +83,33 @@
 //! };
 //! let mut inst = Instrument::new(&DESCRIPTION, Glass, Plain, Plain, Plain).unwrap();
 //!
-//! // A frame from the forward model: sample nD 1.4000 at 20 °C.
+//! // Frames from the forward model stand in for the sensor.
 //! let scene = SensorScene {
 //!     geometry: GEOMETRY, led_centre_nm: 589.3, led_fwhm_nm: 0.0, blur_px: 1.5,
 //!     full_scale: 3000.0, dark_level: 100.0, read_noise: 3.0,
 //!     shot_noise_per_count: 0.0, response_spread: 0.0, adc_max: 4095,
 //! };
-//! let sample = SampleState { index: 1.4, dispersion_per_nm: 0.0, temperature_c: 20.0 };
+//! let mut rng = Rng::new(7);
 //! let mut frame = [0u16; 512];
-//! render(&scene, &Glass, &sample, &mut Rng::new(7), &mut frame).unwrap();
+//! let mut shoot = |n: f64, frame: &mut [u16]| {
+//!     let sample = SampleState { index: n, dispersion_per_nm: 0.0, temperature_c: 20.0 };
+//!     render(&scene, &Glass, &sample, &mut rng, frame).unwrap();
+//! };
 //!
+//! // Zero with water on the prism.
+//! shoot(1.333, &mut frame);
+//! let water = inst.feed(&frame, 20.0).unwrap().unwrap();
+//! inst.zero_with_water(&water, &Water).unwrap();
+//!
+//! // A sample of nD 1.4000: frame → boundary → geometry → correction → nD20.
+//! shoot(1.4, &mut frame);
 //! let reading = inst.measure(&frame, 20.0).unwrap().unwrap();
-//! // Uncalibrated: the finder sits on the steepest part of the Fresnel edge, a
-//! // little inside the critical angle; calibration removes that offset.
-//! assert!((reading.nd20 - 1.4).abs() < 1.5e-3);
+//! // Water zero alone leaves under 1e-4 here; a span standard
+//! // (`add_standard`) takes the rest.
+//! assert!((reading.nd20 - 1.4).abs() < 1e-4);
 //! assert!(reading.uncertainty > 0.0 && !reading.stable);
+//! let b = reading.averaged.boundary;
+//! assert!(b.contrast() > 500 && b.noise_q8 > 0);
 //! ```
 
 use crate::error::{Error, Quantity};
@@ -184,7 +203,8 @@ pub struct Instrument<S, P, W, C, T> {
     compensation: C,
     scale: T,
     correction: Correction<S>,
-    zero_standard: Option<Standard<S>>,
+    /// Standards read since the last water zero (zero, span).
+    standards: [Option<Standard<S>>; 2],
     frames: u8,
     u_temperature: S,
     u_calibration: S,
@@ -238,7 +258,7 @@ where
             compensation,
             scale,
             correction: Correction::identity(),
-            zero_standard: None,
+            standards: [None, None],
             frames: d.frames_per_reading,
             u_temperature: described(
                 d.temperature_uncertainty_c,
@@ -457,16 +477,19 @@ where
             reference,
         };
         let c = calibration::zero(standard)?;
-        self.zero_standard = Some(standard);
+        self.standards = [Some(standard), None];
         self.correction = c;
         Ok(c)
     }
 
-    /// Span with a standard of known nD at 20 °C (after [`Self::zero_with_water`]),
-    /// brought to the LED wavelength and temperature through the standard's own
-    /// dispersion and temperature models; sets an offset-and-scale correction.
-    /// Without a previous zero: `OutOfRange(RefractiveIndex)`.
-    pub fn span_with_standard<W2, C2>(
+    /// A standard of known nD at 20 °C after [`Self::zero_with_water`], brought
+    /// to the LED wavelength and the average's temperature through the
+    /// standard's own dispersion and temperature models. The first standard after
+    /// a zero is the span: an offset-and-scale correction. The next one sets the
+    /// quadratic through all three (factory calibration over a wide range); each
+    /// further one replaces that third. Without a zero first:
+    /// `OutOfRange(RefractiveIndex)`.
+    pub fn add_standard<W2, C2>(
         &mut self,
         avg: &Averaged<S>,
         nd20: S,
@@ -477,9 +500,8 @@ where
         W2: WavelengthCorrection<S> + ?Sized,
         C2: SampleCompensation<S> + ?Sized,
     {
-        let zero = self
-            .zero_standard
-            .ok_or(Error::OutOfRange(Quantity::RefractiveIndex))?;
+        let missing = Error::OutOfRange(Quantity::RefractiveIndex);
+        let zero = self.standards[0].ok_or(missing)?;
         let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
         let reference = calibration::standard_reference(
             nd20,
@@ -488,13 +510,18 @@ where
             self.wavelength,
             avg.temperature_c,
         )?;
-        let c = calibration::zero_and_span(
-            zero,
-            Standard {
-                measured,
-                reference,
-            },
-        )?;
+        let new = Standard {
+            measured,
+            reference,
+        };
+        let c = match self.standards[1] {
+            Some(span) => calibration::three_standards(zero, span, new)?,
+            None => {
+                let c = calibration::zero_and_span(zero, new)?;
+                self.standards = [Some(zero), Some(new)];
+                c
+            }
+        };
         self.correction = c;
         Ok(c)
     }
