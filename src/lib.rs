@@ -1,10 +1,17 @@
 //! Optics math for instrument firmware: refractometers and camera autofocus.
 //!
 //! `embedded-optics` gives firmware for handheld digital refractometers and
-//! autofocus controllers the physics they rest on (refraction and critical angle,
-//! Fresnel reflectance, and in later modules dispersion, thin lenses and the
-//! measurement chains), in `no_std` Rust with no heap and no panics. Every routine
-//! is written once, generic over [`Scalar`], and runs in `f32`, `f64` or fixed
+//! autofocus controllers the physics they rest on and the measurement chains
+//! built on it, in `no_std` Rust with no heap and no panics:
+//!
+//! - foundation: [`scalar`], [`error`], [`refraction`], [`fresnel`];
+//! - dispersion and media: [`dispersion`], [`media`], [`medium`], [`chromatic`], [`prism`];
+//! - the refractometer chain: [`refractometer`] (sensor frame → boundary → nD at
+//!   20 °C → %Brix and other scales, calibration record, thermistor, forward model);
+//! - lenses and autofocus: [`lens`], [`focus`], [`actuator`], [`actuator_driver`],
+//!   [`af_assist`], [`focus_metric`], [`focus_search`], [`focus_sim`].
+//!
+//! Every routine is written once, generic over [`Scalar`], and runs in `f32`, `f64` or fixed
 //! point ([`I32F32`](fixed::types::I32F32), [`I8F24`](fixed::types::I8F24)) with
 //! the same algorithm, so a Cortex-M0 without FPU and a PC simulation agree.
 //!
