@@ -3,7 +3,8 @@
 //!
 //! `cargo run --example autofocus_sim`
 
-use embedded_optics::focus_search::{FocusSearch, PhaseHint, SearchConfig, Step};
+use embedded_optics::af_assist::FocusTarget;
+use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
 use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
 
 fn main() {
@@ -20,8 +21,8 @@ fn main() {
 
     for hint in [
         None,
-        Some(PhaseHint {
-            target_code: truth + 9,
+        Some(FocusTarget {
+            code: u16::try_from(truth + 9).unwrap(),
             confidence: 0.85,
         }),
     ] {

@@ -33,8 +33,10 @@
 //! and cancels out. The one exception is the very first coarse sample at
 //! `code_min`, reached from wherever the lens was (nothing lies below it).
 //!
-//! **Hybrid (phase-detect hint)**: [`FocusSearch::start_with_hint`] takes a
-//! target code and a confidence from a phase-detect sensor. At or above
+//! **Hybrid (phase-detect or range hint)**: [`FocusSearch::start_with_hint`]
+//! takes the [`FocusTarget`] (code and confidence) that
+//! [`af_assist`](crate::af_assist) produces from a phase-detect disparity or a
+//! range reading. At or above
 //! `hint_min_confidence` the search scans only `hint_half_window` fine steps on
 //! each side of the target; if the peak is not bracketed there, the window is
 //! flat, or the confirmation fails, it falls back to the full search. Below the
@@ -65,6 +67,7 @@
 //! assert!((focused.code - 400).abs() <= 4);
 //! ```
 
+use crate::af_assist::FocusTarget;
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::scalar::Scalar;
@@ -241,17 +244,6 @@ impl<S: Scalar> SearchConfig<S> {
             hint_half_window: 2,
         }
     }
-}
-
-/// A phase-detect estimate: where it thinks the lens should go, and how sure it
-/// is.
-#[derive(Clone, Copy, Debug, PartialEq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct PhaseHint<S> {
-    /// Estimated in-focus actuator code.
-    pub target_code: i32,
-    /// Confidence in [0, 1].
-    pub confidence: S,
 }
 
 /// Which end of travel the peak was found at.
@@ -464,26 +456,30 @@ impl<S: Scalar> FocusSearch<S> {
         self.begin_full()
     }
 
-    /// Starts a hybrid search from a phase-detect hint; returns the first move.
+    /// Starts a hybrid search from a focus target (the output of
+    /// [`phase_detect_target`](crate::af_assist::phase_detect_target) or
+    /// [`range_sensor_target`](crate::af_assist::range_sensor_target)); returns
+    /// the first move.
     ///
     /// Errors (and the search stays as it was) for a confidence that is NaN,
     /// infinite or outside [0, 1], or a target code off travel.
-    pub fn start_with_hint(&mut self, hint: PhaseHint<S>) -> Result<Step, Error> {
+    pub fn start_with_hint(&mut self, hint: FocusTarget<S>) -> Result<Step, Error> {
         let confidence = hint
             .confidence
             .check_range(Quantity::Confidence, S::ZERO, S::ONE)?;
         let c = self.config;
-        if !(c.code_min..=c.code_max).contains(&hint.target_code) {
+        let target_code = i32::from(hint.code);
+        if !(c.code_min..=c.code_max).contains(&target_code) {
             return Err(Error::OutOfRange(Quantity::ActuatorCode));
         }
         if confidence < c.hint_min_confidence {
             return Ok(self.start());
         }
         self.frames = 0;
-        self.park_code = hint.target_code;
+        self.park_code = target_code;
         let half = c.hint_half_window * c.fine_step;
-        let lo = hint.target_code.saturating_sub(half).max(c.code_min);
-        let hi = hint.target_code.saturating_add(half).min(c.code_max);
+        let lo = target_code.saturating_sub(half).max(c.code_min);
+        let hi = target_code.saturating_add(half).min(c.code_max);
         Ok(self.begin_scan(ScanKind::Hint, lo, hi, c.fine_step))
     }
 

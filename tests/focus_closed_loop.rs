@@ -10,9 +10,8 @@
 //! - every run ends within its frame budget.
 
 use embedded_optics::Scalar;
-use embedded_optics::focus_search::{
-    FailureReason, FocusSearch, PhaseHint, SearchConfig, Step, TravelEnd,
-};
+use embedded_optics::af_assist::FocusTarget;
+use embedded_optics::focus_search::{FailureReason, FocusSearch, SearchConfig, Step, TravelEnd};
 use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, SimRng, run_search};
 use fixed::types::{I8F24, I32F32};
 
@@ -133,8 +132,8 @@ fn study<S: Scalar>(
             // Phase-detect estimate: the true code plus an error of up to ±sigma.
             let truth = lens.code_for_scene(&scene).unwrap();
             let err = rng.below(2 * sigma as u32 + 1) as i32 - sigma;
-            PhaseHint {
-                target_code: (truth + err).clamp(0, lens.code_max),
+            FocusTarget {
+                code: u16::try_from((truth + err).clamp(0, lens.code_max)).unwrap(),
                 confidence: S::from_f64(confidence).unwrap(),
             }
         });
