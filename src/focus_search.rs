@@ -66,9 +66,18 @@
 //! let Step::Done(focused) = step else { panic!("{step:?}") };
 //! assert!((focused.code - 400).abs() <= 4);
 //! ```
+//!
+//! What follows is `docs/autofocus.md`: the closed-loop figures measured on
+//! the simulated module ([`focus_sim`](crate::focus_sim)), with the hints from
+//! [`af_assist`](crate::af_assist) and the moves through
+//! [`actuator_driver`](crate::actuator_driver).
+//!
+#![doc = include_str!("../docs/autofocus.md")]
 
+use crate::actuator::{ActuatorModel, OperatingConditions};
 use crate::af_assist::FocusTarget;
 use crate::error::{Error, Quantity};
+use crate::focus::FocusSweepPlan;
 use crate::lit;
 use crate::scalar::Scalar;
 use core::mem;
@@ -243,6 +252,80 @@ impl<S: Scalar> SearchConfig<S> {
             hint_min_confidence: lit!(S, 0.6),
             hint_half_window: 2,
         }
+    }
+}
+
+impl<S: Scalar> SearchConfig<S> {
+    /// Settings whose coarse step is one position of a [`FocusSweepPlan`]: every
+    /// subject in the plan's range then lies within the depth of focus of some
+    /// coarse sample, so the coarse scan cannot step over a peak. The travel is
+    /// the plan's (far end to near end) mapped to codes by `model` under nominal
+    /// conditions; the coarse step widens if the travel would hold more than
+    /// [`SCAN_CAPACITY`]` − 2` intervals. Fine step a quarter of the coarse one,
+    /// backlash margin four fine steps (raise it if the actuator's play is
+    /// larger), a frame budget that covers a full coarse scan, the fine scan and
+    /// the final approach, and the park code at `hyperfocal_extension` (from
+    /// [`hyperfocal_extension`](crate::focus::hyperfocal_extension), clamped to
+    /// the travel). The plan, the model and the extension share one length unit.
+    ///
+    /// Errors: a plan end off the actuator's travel is [`Error::OutOfRange`] of
+    /// [`Quantity::ActuatorCode`]; a plan of one position, or one whose ends map
+    /// to the same code, is [`Error::OutOfRange`] of [`Quantity::SearchSetting`].
+    ///
+    /// ```
+    /// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint};
+    /// use embedded_optics::focus::{hyperfocal_extension, plan_focus_sweep, SubjectDistance};
+    /// use embedded_optics::focus_search::SearchConfig;
+    /// // Our camera rig's module, in millimetres: 4 mm f/2, c = 2.24 µm,
+    /// // infinity at code 300, 10 cm at code 700.
+    /// let model = ActuatorModel::from_table(4.0f64, &[
+    ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
+    ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(100.0) },
+    /// ]).unwrap();
+    /// let plan = plan_focus_sweep(4.0, 2.0, 0.00224, 100.0, SubjectDistance::Infinity, 0.25).unwrap();
+    /// let park = hyperfocal_extension(2.0, 0.00224).unwrap();
+    /// let cfg = SearchConfig::from_sweep_plan(&plan, &model, park).unwrap();
+    /// assert_eq!((cfg.code_min, cfg.code_max), (300, 700));
+    /// assert_eq!(cfg.coarse_step, 16); // 400 codes over 25 intervals
+    /// assert_eq!(cfg.hyperfocal_code, 311);
+    /// ```
+    pub fn from_sweep_plan(
+        plan: &FocusSweepPlan<S>,
+        model: &ActuatorModel<S>,
+        hyperfocal_extension: S,
+    ) -> Result<Self, Error> {
+        let setting = Error::OutOfRange(Quantity::SearchSetting);
+        let nominal = OperatingConditions::nominal();
+        let f = model.focal_length();
+        let code_of = |extension: S| -> Result<i32, Error> {
+            Ok(i32::from(
+                model.code_for_extension_ratio(extension.div(f)?, &nominal)?,
+            ))
+        };
+        let last = plan
+            .steps
+            .checked_sub(1)
+            .filter(|&n| n >= 1)
+            .ok_or(setting)?;
+        let far_end = plan.extension_at(0).ok_or(setting)?;
+        let near_end = plan.extension_at(last).ok_or(setting)?;
+        let (code_min, code_max) = (code_of(far_end)?, code_of(near_end)?);
+        let span = code_max - code_min;
+        if span < 1 {
+            return Err(setting);
+        }
+        let cap = (SCAN_CAPACITY - 2) as i32;
+        let per_position = span / i32::from(last);
+        let coarse = per_position.max((span + cap - 1) / cap).clamp(1, span);
+        let fine = (coarse / 4).max(1);
+        let park = code_of(hyperfocal_extension)?.clamp(code_min, code_max);
+        let frames = (span / coarse + 2) + (2 * (coarse / fine) + 1) + 6;
+        let mut config = Self::typical(code_min, code_max, park);
+        config.coarse_step = coarse;
+        config.fine_step = fine;
+        config.backlash_margin = 4 * fine;
+        config.frame_budget = u16::try_from(frames).unwrap_or(u16::MAX);
+        Ok(config)
     }
 }
 

@@ -28,11 +28,12 @@
 //! assert!(cam.focus_error_dof().unwrap() < 1.0);
 //! ```
 
+use crate::actuator::{ActuatorModel, CalibrationPoint};
 use crate::af_assist::FocusTarget;
 use crate::error::{Error, Quantity};
 use crate::focus::{
-    blur_circle_diameter, depth_of_focus_at_magnification, extension_ratio_for_vergence,
-    hyperfocal_extension,
+    SubjectDistance, blur_circle_diameter, depth_of_focus_at_magnification,
+    extension_ratio_for_vergence, hyperfocal_extension, subject_distance_from_extension,
 };
 use crate::focus_metric::{Roi, tenengrad};
 use crate::focus_search::{FocusSearch, Step, split_floor, unit_to_q16};
@@ -199,11 +200,49 @@ impl<S: Scalar> LensModel<S> {
         Ok((w, self.focal_length_mm.mul(w)?))
     }
 
-    /// Image-plane shift from best focus with the lens at `code`, mm, and the
-    /// subject's magnification.
-    fn defocus(&self, scene: &Scene<S>, code: i32) -> Result<(S, S), Error> {
+    /// The true defocus with the lens at `code`: the lens extension there minus
+    /// the extension that focuses the scene, mm (positive: the lens is out too
+    /// far, focused nearer than the subject), and the subject's magnification.
+    /// What a phase-detect sensor measures, before its own errors.
+    pub fn defocus_mm(&self, scene: &Scene<S>, code: i32) -> Result<(S, S), Error> {
         let (w, e_subject) = self.subject_extension(scene)?;
         Ok((self.extension_at(code)?.sub(e_subject)?, w))
+    }
+
+    /// What the module's factory calibration would store: the code nearest to
+    /// infinity focus and the subject focused at the top of travel, as an
+    /// [`ActuatorModel`] over travel 0 to `code_max` (lengths in mm). The
+    /// simulated actuator is linear in extension, as the model assumes, so the
+    /// two agree to the rounding of the infinity code.
+    ///
+    /// [`Error::OutOfRange`] of [`Quantity::ActuatorCode`] when infinity lies
+    /// off travel or `code_max` exceeds [`MAX_CODE`](crate::actuator::MAX_CODE);
+    /// [`Error::Overflow`] when the macro distance does not fit the type.
+    pub fn factory_calibration(&self) -> Result<ActuatorModel<S>, Error> {
+        self.check()?;
+        let infinity = self.code_at(S::ZERO)?;
+        let top =
+            u16::try_from(self.code_max).map_err(|_| Error::OutOfRange(Quantity::ActuatorCode))?;
+        let infinity =
+            u16::try_from(infinity).map_err(|_| Error::OutOfRange(Quantity::ActuatorCode))?;
+        let near = subject_distance_from_extension(
+            self.focal_length_mm,
+            self.extension_at(self.code_max)?,
+        )?;
+        ActuatorModel::from_table(
+            self.focal_length_mm,
+            &[
+                CalibrationPoint {
+                    code: infinity,
+                    subject: SubjectDistance::Infinity,
+                },
+                CalibrationPoint {
+                    code: top,
+                    subject: near,
+                },
+            ],
+        )?
+        .with_travel(0, top)
     }
 
     /// The code whose extension focuses the scene (nearest code, may lie off
@@ -225,7 +264,7 @@ impl<S: Scalar> LensModel<S> {
     /// Blur-circle diameter on the sensor, pixels, with the lens at `code`
     /// ([`blur_circle_diameter`]).
     pub fn blur_px(&self, scene: &Scene<S>, code: i32) -> Result<S, Error> {
-        let (shift, w) = self.defocus(scene, code)?;
+        let (shift, w) = self.defocus_mm(scene, code)?;
         blur_circle_diameter(self.f_number, shift, w)?.div(self.pixel_pitch_mm)
     }
 
@@ -331,7 +370,7 @@ impl<S: Scalar> SimCamera<S> {
     /// shift over half the [`depth_of_focus_at_magnification`] (≤ 1 is within
     /// the depth of focus; equals the blur circle over the circle of confusion).
     pub fn focus_error_dof(&self) -> Result<S, Error> {
-        let (shift, w) = self.lens.defocus(&self.scene, self.position)?;
+        let (shift, w) = self.lens.defocus_mm(&self.scene, self.position)?;
         let half_depth = depth_of_focus_at_magnification(
             self.lens.f_number,
             self.lens.circle_of_confusion_mm,
