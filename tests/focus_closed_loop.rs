@@ -658,3 +658,66 @@ fn budget_exhaustion_and_unconfirmed_peak_fail() {
     assert_eq!(f.reason, FailureReason::PeakNotConfirmed);
     assert!((f.park_code - 400).abs() <= 2);
 }
+
+/// The planned coarse scan leaves no gap: every subject from 10 cm to infinity
+/// lies within the depth of focus of some coarse sample (the plan's 25 %
+/// overlap leaves room for the rounding of codes), and the typical 63-code step
+/// does leave gaps, which is why the planned settings exist.
+#[test]
+fn planned_coarse_scan_covers_the_range_in_depth_of_focus() {
+    let lens = LensModel::<f64>::phone_module();
+    let worst_gap = |cfg: &SearchConfig<f64>| {
+        let mut codes: Vec<i32> = (cfg.code_min..cfg.code_max)
+            .step_by(cfg.coarse_step as usize)
+            .collect();
+        codes.push(cfg.code_max);
+        let mut worst = 0.0f64;
+        for i in 0..=10_000 {
+            let scene = Scene {
+                vergence_dpt: f64::from(i) / 1000.0,
+                contrast: 1.0,
+            };
+            let nearest = codes
+                .iter()
+                .map(|&c| {
+                    let mut cam = SimCamera::new(lens, scene, c, 0).unwrap();
+                    cam.command(c).unwrap();
+                    cam.focus_error_dof().unwrap()
+                })
+                .fold(f64::INFINITY, f64::min);
+            worst = worst.max(nearest);
+        }
+        worst
+    };
+    let planned = planned_config(&lens);
+    assert_eq!((planned.code_min, planned.code_max), (40, 707));
+    let gap = worst_gap(&planned);
+    println!(
+        "worst distance to a planned coarse sample: {gap:.3} DoF units; typical: {:.3}",
+        worst_gap(&config(&lens))
+    );
+    assert!(gap <= 1.0, "{gap}");
+    assert!(gap > 0.5, "{gap}: the plan should not be needlessly dense");
+    assert!(worst_gap(&config(&lens)) > 1.0);
+}
+
+/// The phone module's calibration reproduces the simulation's own code for
+/// every subject (the actuator is linear in extension, infinity at code 40).
+#[test]
+fn factory_calibration_matches_the_simulated_actuator() {
+    let lens = LensModel::<f64>::phone_module();
+    let model = lens.factory_calibration().unwrap();
+    let nominal = OperatingConditions::nominal();
+    for i in 1..=100 {
+        let v = f64::from(i) / 10.0;
+        let scene = Scene {
+            vergence_dpt: v,
+            contrast: 1.0,
+        };
+        let sim = lens.code_for_scene(&scene).unwrap();
+        let modelled = model
+            .code_for_distance(SubjectDistance::Finite(1000.0 / v), &nominal)
+            .unwrap();
+        assert_eq!(i32::from(modelled), sim, "{v} dpt");
+    }
+}

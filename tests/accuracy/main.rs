@@ -4,6 +4,7 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+mod afint;
 mod cal;
 mod harness;
 mod lens;
@@ -55,6 +56,10 @@ fn all_rows() -> Vec<Row> {
         row::<lens::FarPoint>(),
         row::<lens::RatioForCode>(),
         row::<lens::RangeParallax>(),
+        row::<afint::ExtensionForVergence>(),
+        row::<afint::BlurCircle>(),
+        row::<afint::DepthOfFocusAtMagnification>(),
+        row::<afint::HyperfocalExtension>(),
     ]
 }
 
