@@ -168,11 +168,7 @@ pub fn interpolate_peak<S: Scalar>(
 /// any [`Scalar`] (an `I8F24` holds no more than 128) into an integer.
 pub(crate) fn unit_to_q16<S: Scalar>(x: S, quantity: Quantity) -> Result<u32, Error> {
     let x = x.check_range(quantity, S::ZERO, lit!(S, 1.99))?;
-    // Six integer bits, then five and five: no intermediate exceeds 128.
-    let (hi, rest) = split_floor(x.mul(lit!(S, 64.0))?)?;
-    let (mid, rest) = split_floor(rest.mul(lit!(S, 32.0))?)?;
-    let lo = rest.mul(lit!(S, 32.0))?.round_to_i32()?;
-    u32::try_from(hi * 1024 + mid * 32 + lo).map_err(|_| Error::Overflow)
+    u32::try_from(crate::actuator::to_code_units(x)?).map_err(|_| Error::Overflow)
 }
 
 /// Integer part (floor) and fraction of a non-negative value.
