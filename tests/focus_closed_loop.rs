@@ -436,8 +436,23 @@ runs, so the figures are exactly reproducible.
 
 Adequate contrast (0.25–1): at least 99 % within DoF in every number type and
 with every assist (95 % at 15 % noise); flat scenes: never `Done`, always low
-contrast at the hyperfocal code; no wrong `Done` at marginal contrast; every run
-within its frame budget.
+contrast at the hyperfocal code; no wrong `Done` in any study; the range and
+phase-detect targets confirmed in the hint window in at least 85 % of runs;
+every run within its frame budget.
+
+## Reading the figures
+
+- The typical settings step 63 codes (1.75 depths of focus) in the coarse scan
+  and rely on the metric's wide tails to see a peak between samples; the
+  planned settings step one planned position (26 codes, no subject farther than
+  0.73 depth of focus from a coarse sample, measured (and asserted ≤ 1) by
+  `planned_coarse_scan_covers_the_range_in_depth_of_focus`) and pay for that
+  guarantee with about 8 more frames per search on this module.
+- A sensor hint (range or phase detect) cuts the mean from about 20 frames to
+  about 9; runs the hint window cannot confirm fall back to the full search,
+  which sets the worst case (32–33 frames).
+- Marginal contrast (0.03–0.25) ends in a reported low-contrast failure in
+  about a quarter of runs, never in a wrong `Done`.
 
 ## Figures
 
