@@ -257,10 +257,11 @@ impl<S: Scalar> SearchConfig<S> {
     /// coarse sample, so the coarse scan cannot step over a peak. The travel is
     /// the plan's (far end to near end) mapped to codes by `model` under nominal
     /// conditions; the coarse step widens if the travel would hold more than
-    /// [`SCAN_CAPACITY`]` − 2` intervals. Fine step a quarter of the coarse one,
-    /// backlash margin four fine steps (raise it if the actuator's play is
-    /// larger), a frame budget that covers a full coarse scan, the fine scan and
-    /// the final approach, and the park code at `hyperfocal_extension` (from
+    /// [`SCAN_CAPACITY`]` − 2` intervals. Fine step half the coarse one, a hint
+    /// window of two coarse steps each side (room for a phase-detect target a
+    /// few per cent off, plus the metric's fall on both sides), backlash margin
+    /// four fine steps (raise it if the actuator's play is larger), a frame budget that covers a hint window that fails, then a full
+    /// coarse scan, the fine scan and the final approach, and the park code at `hyperfocal_extension` (from
     /// [`hyperfocal_extension`](crate::focus::hyperfocal_extension), clamped to
     /// the travel). The plan, the model and the extension share one length unit.
     ///
@@ -283,6 +284,7 @@ impl<S: Scalar> SearchConfig<S> {
     /// let cfg = SearchConfig::from_sweep_plan(&plan, &model, park).unwrap();
     /// assert_eq!((cfg.code_min, cfg.code_max), (300, 700));
     /// assert_eq!(cfg.coarse_step, 16); // 400 codes over 25 intervals
+    /// assert_eq!((cfg.fine_step, cfg.hint_half_window), (8, 4));
     /// assert_eq!(cfg.hyperfocal_code, 311);
     /// ```
     pub fn from_sweep_plan(
@@ -313,10 +315,14 @@ impl<S: Scalar> SearchConfig<S> {
         let cap = (SCAN_CAPACITY - 2) as i32;
         let per_position = span / i32::from(last);
         let coarse = per_position.max((span + cap - 1) / cap).clamp(1, span);
-        let fine = (coarse / 4).max(1);
+        let fine = (coarse / 2).max(1);
         let park = code_of(hyperfocal_extension)?.clamp(code_min, code_max);
-        let frames = (span / coarse + 2) + (2 * (coarse / fine) + 1) + 6;
         let mut config = Self::typical(code_min, code_max, park);
+        // Coarse scan, fine scan, two pre-moves, settle and confirm; then a
+        // hint window with its own pre-move, settle and confirm before it.
+        config.hint_half_window = 2 * (coarse / fine);
+        let window = 2 * config.hint_half_window + 1 + 3;
+        let frames = (span / coarse + 2) + (2 * (coarse / fine) + 1) + 6 + window;
         config.coarse_step = coarse;
         config.fine_step = fine;
         config.backlash_margin = 4 * fine;

@@ -254,7 +254,13 @@ fn study<S: Scalar>(
         let start = rng.below(lens.code_max as u32 + 1) as i32;
         let mut cam = SimCamera::new(lens, scene, start, rng.next_u64()).unwrap();
         let mut search = FocusSearch::new(cfg).unwrap();
-        let hint = assist_target(assist, &lens, &model, &scene, start, &mut rng);
+        // A target off the search's travel is brought to its nearer end.
+        let travel = (cfg.code_min as u16, cfg.code_max as u16);
+        let hint =
+            assist_target(assist, &lens, &model, &scene, start, &mut rng).map(|t| FocusTarget {
+                code: t.code.clamp(travel.0, travel.1),
+                ..t
+            });
         let step = run_search(&mut cam, &mut search, hint).unwrap();
         let err = cam.focus_error_dof().unwrap().to_f64();
         if let Step::Failed(f) = step {
@@ -404,11 +410,13 @@ runs, so the figures are exactly reproducible.
   fine 15, backlash margin 60, budget 40 frames, Gaussian peak fit) with a peak
   threshold of four times the metric floor; *planned* rows use
   `SearchConfig::from_sweep_plan` (coarse step one depth-of-focus position of
-  `plan_focus_sweep`, 10 cm to infinity, 25 % overlap).
+  `plan_focus_sweep`, 10 cm to infinity, 25 % overlap: codes 40–707, coarse 26,
+  fine 13, hint window ±52 codes, budget 50 frames).
 - **Range sensor**: time of flight 12 mm beside the lens, reading error uniform
   within ±(1 % + 3 mm), nothing reported beyond 4 m (then the full search runs);
   the reading goes through `range_sensor_target` with the module's
-  `factory_calibration`.
+  `factory_calibration`. A target off the search's travel is brought to its
+  nearer end.
 - **Phase detect**: disparity from the true defocus at the start position
   through a gain of 4.48 µm per pixel, calibrated to within ±3 %, plus noise
   within ±0.3 px; through `phase_detect_target`.
@@ -447,7 +455,9 @@ every run within its frame budget.
   planned settings step one planned position (26 codes, no subject farther than
   0.73 depth of focus from a coarse sample, measured (and asserted ≤ 1) by
   `planned_coarse_scan_covers_the_range_in_depth_of_focus`) and pay for that
-  guarantee with about 8 more frames per search on this module.
+  guarantee with about 4 more frames per search on this module; they also end
+  with a larger, still small, final error (p99 0.20 against 0.12 depth of
+  focus; observed, cause not yet isolated).
 - A sensor hint (range or phase detect) cuts the mean from about 20 frames to
   about 9; runs the hint window cannot confirm fall back to the full search,
   which sets the worst case (32–33 frames).
@@ -513,6 +523,34 @@ fn closed_loop_figures_meet_thresholds_and_doc_is_current() {
     );
     let ok = f.within_at_least(99);
     check(&mut f, "contrast, planned steps", "I8F24", "0.25–1", ok);
+    let mut f = study(
+        lens,
+        planned_config(&lens),
+        0x91A6,
+        adequate,
+        Assist::PhaseDetect,
+    );
+    let ok = f.within_at_least(99) && f.from_hint * 100 >= f.runs * 85;
+    check(
+        &mut f,
+        "phase detect → hybrid, planned steps",
+        "f64",
+        "0.25–1",
+        ok,
+    );
+    let wrong = Assist::Offset {
+        confidence: 0.9,
+        sigma: 200,
+    };
+    let mut f = study(lens, planned_config(&lens), 0x91A7, adequate, wrong);
+    let ok = f.within_at_least(99);
+    check(
+        &mut f,
+        "hybrid, wrong hint ±200 codes, planned steps",
+        "f64",
+        "0.25–1",
+        ok,
+    );
 
     let hybrids = [
         (
@@ -706,6 +744,12 @@ fn planned_coarse_scan_covers_the_range_in_depth_of_focus() {
     };
     let planned = planned_config(&lens);
     assert_eq!((planned.code_min, planned.code_max), (40, 707));
+    let steps = (
+        planned.coarse_step,
+        planned.fine_step,
+        planned.hint_half_window,
+    );
+    assert_eq!((steps, planned.frame_budget), ((26, 13, 4), 50));
     let gap = worst_gap(&planned);
     println!(
         "worst distance to a planned coarse sample: {gap:.3} DoF units; typical: {:.3}",
