@@ -460,7 +460,8 @@ every run within its frame budget.
   focus; observed, cause not yet isolated).
 - A sensor hint (range or phase detect) cuts the mean from about 20 frames to
   about 9; runs the hint window cannot confirm fall back to the full search,
-  which sets the worst case (32–33 frames).
+  which sets the worst case (32–33 frames with the typical settings, 44 with
+  the planned ones).
 - Marginal contrast (0.03–0.25) ends in a reported low-contrast failure in
   about a quarter of runs, never in a wrong `Done`.
 
