@@ -14,6 +14,13 @@
 //! does the slow thing on a small synthetic texture, and the tests check the
 //! model against it.
 //!
+//! The geometry is the library's own: the lens extension from
+//! [`extension_ratio_for_vergence`], the blur circle from
+//! [`blur_circle_diameter`], the defocus scale from
+//! [`depth_of_focus_at_magnification`], the fallback position from
+//! [`hyperfocal_extension`]; [`LensModel::factory_calibration`] gives the
+//! [`ActuatorModel`] that the assist routines need to drive this module.
+//!
 //! Units: subject vergence in dioptres (1/m; 0 is infinity), lengths in mm.
 //! The metric is returned in 2^-16 units of the model's scale (a sharp subject
 //! of contrast 1 gives about 65 536).
