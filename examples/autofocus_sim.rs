@@ -1,9 +1,14 @@
-//! One contrast-detect search and one hybrid (phase-detect hinted) search on
-//! the simulated phone-class camera module, frame by frame.
+//! One contrast-detect search and one hybrid search on the simulated
+//! phone-class camera module, frame by frame. The hybrid search starts from
+//! the target that `phase_detect_target` makes of a phase-detect disparity
+//! (simulated from the true defocus, with 0.2 px of sensor error), through the
+//! module's factory calibration.
 //!
 //! `cargo run --example autofocus_sim`
 
-use embedded_optics::focus_search::{FocusSearch, PhaseHint, SearchConfig, Step};
+use embedded_optics::actuator::OperatingConditions;
+use embedded_optics::af_assist::{PhaseDetectCalibration, phase_detect_target};
+use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
 use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
 
 fn main() {
@@ -18,14 +23,33 @@ fn main() {
     config.min_peak_metric = 262; // four times the simulated metric floor
     println!("subject in focus at code {truth}");
 
-    for hint in [
-        None,
-        Some(PhaseHint {
-            target_code: truth + 9,
-            confidence: 0.85,
-        }),
-    ] {
-        let mut camera = SimCamera::new(lens, scene, 800, 42).unwrap();
+    // Phase-detect pixels read with the lens at code 800: 4.48 µm of defocus
+    // per pixel of disparity (invented calibration).
+    let start = 800;
+    let calibration = PhaseDetectCalibration {
+        defocus_per_pixel: 0.00448,
+        max_disparity: 64.0,
+        min_confidence: 0.5,
+    };
+    let (shift_mm, _) = lens.defocus_mm(&scene, start).unwrap();
+    let disparity = -shift_mm / 0.00448 + 0.2;
+    let model = lens.factory_calibration().unwrap();
+    let target = phase_detect_target(
+        &model,
+        &calibration,
+        start as u16,
+        disparity,
+        0.85,
+        &OperatingConditions::nominal(),
+    )
+    .unwrap();
+    println!(
+        "phase detect: {disparity:.2} px of disparity, target code {}",
+        target.code
+    );
+
+    for hint in [None, Some(target)] {
+        let mut camera = SimCamera::new(lens, scene, start, 42).unwrap();
         let mut search = FocusSearch::new(config).unwrap();
         let mut step = match hint {
             Some(h) => search.start_with_hint(h).unwrap(),

@@ -3,8 +3,9 @@
 //! Our fictional camera rig has a 4 mm f/2 phone-size module (invented
 //! calibration: infinity at code 300, 10 cm at code 700, 10-bit VCM at I²C 0x0C behind register 0x03)
 //! and a time-of-flight sensor 12 mm beside the lens. The example plans a full
-//! contrast sweep, turns three range readings into actuator codes (with the module
-//! facing up at 40 °C), and drives a printing stand-in for the I²C bus.
+//! contrast sweep and the contrast search's settings from it, turns three range
+//! readings into actuator codes (with the module facing up at 40 °C), and drives
+//! a printing stand-in for the I²C bus.
 //!
 //! Run: `cargo run --example camera_rig_focus`
 
@@ -16,8 +17,10 @@ use embedded_optics::actuator::{
 use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
 use embedded_optics::af_assist::{RangeSensorMount, range_sensor_target};
 use embedded_optics::focus::{
-    SubjectDistance, circle_of_confusion_from_pitch, hyperfocal_distance, plan_focus_sweep,
+    SubjectDistance, circle_of_confusion_from_pitch, hyperfocal_distance, hyperfocal_extension,
+    plan_focus_sweep,
 };
+use embedded_optics::focus_search::SearchConfig;
 use embedded_optics::{Error, Scalar};
 use fixed::types::I8F24;
 
@@ -84,6 +87,15 @@ fn main() -> Result<(), Error> {
     .with_hysteresis(6)?
     .with_temperature_drift(m(25.0)?, m(-0.4)?)?
     .with_posture_offsets(m(7.0)?, m(-5.0)?)?;
+    // The contrast search steps one planned position at a time over the same
+    // range (its near end lands at code 697, not 700: in I8F24 metres the
+    // spacing is held to 60 nm, and 25 spacings add up to a few codes).
+    let park = hyperfocal_extension(n, c)?;
+    let search = SearchConfig::from_sweep_plan(&plan, &model, park)?;
+    println!(
+        "contrast search: codes {}..{}, coarse step {}, fine step {}, budget {} frames",
+        search.code_min, search.code_max, search.coarse_step, search.fine_step, search.frame_budget
+    );
     let mount = RangeSensorMount {
         baseline: m(0.012)?,
         axial_offset: m(0.0)?,

@@ -136,10 +136,10 @@ pub struct ActuatorModel<S> {
     facing_down_codes: S,
 }
 
-/// `x` as a signed fixed-point integer with [`CODE_FRAC_BITS`] fractional bits,
-/// built digit by digit so that no intermediate leaves the range of
-/// [`I8F24`](fixed::types::I8F24).
-fn to_code_units<S: Scalar>(x: S) -> Result<i64, Error> {
+/// `x · 2^16` rounded to an integer (the code units here, and the Q16 ratios
+/// of [`focus_search`](crate::focus_search)), built digit by digit so that no
+/// intermediate leaves the range of [`I8F24`](fixed::types::I8F24).
+pub(crate) fn to_code_units<S: Scalar>(x: S) -> Result<i64, Error> {
     let whole = x.round_to_i32()?;
     let mut rem = x.sub(S::from_i32(whole)?)?;
     let mut q = i64::from(whole);

@@ -33,8 +33,10 @@
 //! and cancels out. The one exception is the very first coarse sample at
 //! `code_min`, reached from wherever the lens was (nothing lies below it).
 //!
-//! **Hybrid (phase-detect hint)**: [`FocusSearch::start_with_hint`] takes a
-//! target code and a confidence from a phase-detect sensor. At or above
+//! **Hybrid (phase-detect or range hint)**: [`FocusSearch::start_with_hint`]
+//! takes the [`FocusTarget`] (code and confidence) that
+//! [`af_assist`](crate::af_assist) produces from a phase-detect disparity or a
+//! range reading. At or above
 //! `hint_min_confidence` the search scans only `hint_half_window` fine steps on
 //! each side of the target; if the peak is not bracketed there, the window is
 //! flat, or the confirmation fails, it falls back to the full search. Below the
@@ -64,8 +66,18 @@
 //! let Step::Done(focused) = step else { panic!("{step:?}") };
 //! assert!((focused.code - 400).abs() <= 4);
 //! ```
+//!
+//! What follows is `docs/autofocus.md`: the closed-loop figures measured on
+//! the simulated module ([`focus_sim`](crate::focus_sim)), with the hints from
+//! [`af_assist`](crate::af_assist) and the moves through
+//! [`actuator_driver`](crate::actuator_driver).
+//!
+#![doc = include_str!("../docs/autofocus.md")]
 
+use crate::actuator::{ActuatorModel, OperatingConditions};
+use crate::af_assist::FocusTarget;
 use crate::error::{Error, Quantity};
+use crate::focus::FocusSweepPlan;
 use crate::lit;
 use crate::scalar::Scalar;
 use core::mem;
@@ -156,11 +168,7 @@ pub fn interpolate_peak<S: Scalar>(
 /// any [`Scalar`] (an `I8F24` holds no more than 128) into an integer.
 pub(crate) fn unit_to_q16<S: Scalar>(x: S, quantity: Quantity) -> Result<u32, Error> {
     let x = x.check_range(quantity, S::ZERO, lit!(S, 1.99))?;
-    // Six integer bits, then five and five: no intermediate exceeds 128.
-    let (hi, rest) = split_floor(x.mul(lit!(S, 64.0))?)?;
-    let (mid, rest) = split_floor(rest.mul(lit!(S, 32.0))?)?;
-    let lo = rest.mul(lit!(S, 32.0))?.round_to_i32()?;
-    u32::try_from(hi * 1024 + mid * 32 + lo).map_err(|_| Error::Overflow)
+    u32::try_from(crate::actuator::to_code_units(x)?).map_err(|_| Error::Overflow)
 }
 
 /// Integer part (floor) and fraction of a non-negative value.
@@ -243,15 +251,84 @@ impl<S: Scalar> SearchConfig<S> {
     }
 }
 
-/// A phase-detect estimate: where it thinks the lens should go, and how sure it
-/// is.
-#[derive(Clone, Copy, Debug, PartialEq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct PhaseHint<S> {
-    /// Estimated in-focus actuator code.
-    pub target_code: i32,
-    /// Confidence in [0, 1].
-    pub confidence: S,
+impl<S: Scalar> SearchConfig<S> {
+    /// Settings whose coarse step is one position of a [`FocusSweepPlan`]: every
+    /// subject in the plan's range then lies within the depth of focus of some
+    /// coarse sample, so the coarse scan cannot step over a peak. The travel is
+    /// the plan's (far end to near end) mapped to codes by `model` under nominal
+    /// conditions; the coarse step widens if the travel would hold more than
+    /// [`SCAN_CAPACITY`]` − 2` intervals. Fine step half the coarse one, a hint
+    /// window of two coarse steps each side (room for a phase-detect target a
+    /// few per cent off, plus the metric's fall on both sides), backlash margin
+    /// four fine steps (raise it if the actuator's play is larger), a frame budget that covers a hint window that fails, then a full
+    /// coarse scan, the fine scan and the final approach, and the park code at `hyperfocal_extension` (from
+    /// [`hyperfocal_extension`](crate::focus::hyperfocal_extension), clamped to
+    /// the travel). The plan, the model and the extension share one length unit.
+    ///
+    /// Errors: a plan end off the actuator's travel is [`Error::OutOfRange`] of
+    /// [`Quantity::ActuatorCode`]; a plan of one position, or one whose ends map
+    /// to the same code, is [`Error::OutOfRange`] of [`Quantity::SearchSetting`].
+    ///
+    /// ```
+    /// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint};
+    /// use embedded_optics::focus::{hyperfocal_extension, plan_focus_sweep, SubjectDistance};
+    /// use embedded_optics::focus_search::SearchConfig;
+    /// // Our camera rig's module, in millimetres: 4 mm f/2, c = 2.24 µm,
+    /// // infinity at code 300, 10 cm at code 700.
+    /// let model = ActuatorModel::from_table(4.0f64, &[
+    ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
+    ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(100.0) },
+    /// ]).unwrap();
+    /// let plan = plan_focus_sweep(4.0, 2.0, 0.00224, 100.0, SubjectDistance::Infinity, 0.25).unwrap();
+    /// let park = hyperfocal_extension(2.0, 0.00224).unwrap();
+    /// let cfg = SearchConfig::from_sweep_plan(&plan, &model, park).unwrap();
+    /// assert_eq!((cfg.code_min, cfg.code_max), (300, 700));
+    /// assert_eq!(cfg.coarse_step, 16); // 400 codes over 25 intervals
+    /// assert_eq!((cfg.fine_step, cfg.hint_half_window), (8, 4));
+    /// assert_eq!(cfg.hyperfocal_code, 311);
+    /// ```
+    pub fn from_sweep_plan(
+        plan: &FocusSweepPlan<S>,
+        model: &ActuatorModel<S>,
+        hyperfocal_extension: S,
+    ) -> Result<Self, Error> {
+        let setting = Error::OutOfRange(Quantity::SearchSetting);
+        let nominal = OperatingConditions::nominal();
+        let f = model.focal_length();
+        let code_of = |extension: S| -> Result<i32, Error> {
+            Ok(i32::from(
+                model.code_for_extension_ratio(extension.div(f)?, &nominal)?,
+            ))
+        };
+        let last = plan
+            .steps
+            .checked_sub(1)
+            .filter(|&n| n >= 1)
+            .ok_or(setting)?;
+        let far_end = plan.extension_at(0).ok_or(setting)?;
+        let near_end = plan.extension_at(last).ok_or(setting)?;
+        let (code_min, code_max) = (code_of(far_end)?, code_of(near_end)?);
+        let span = code_max - code_min;
+        if span < 1 {
+            return Err(setting);
+        }
+        let cap = (SCAN_CAPACITY - 2) as i32;
+        let per_position = span / i32::from(last);
+        let coarse = per_position.max((span + cap - 1) / cap).clamp(1, span);
+        let fine = (coarse / 2).max(1);
+        let park = code_of(hyperfocal_extension)?.clamp(code_min, code_max);
+        let mut config = Self::typical(code_min, code_max, park);
+        // Coarse scan, fine scan, two pre-moves, settle and confirm; then a
+        // hint window with its own pre-move, settle and confirm before it.
+        config.hint_half_window = 2 * (coarse / fine);
+        let window = 2 * config.hint_half_window + 1 + 3;
+        let frames = (span / coarse + 2) + (2 * (coarse / fine) + 1) + 6 + window;
+        config.coarse_step = coarse;
+        config.fine_step = fine;
+        config.backlash_margin = 4 * fine;
+        config.frame_budget = u16::try_from(frames).unwrap_or(u16::MAX);
+        Ok(config)
+    }
 }
 
 /// Which end of travel the peak was found at.
@@ -464,26 +541,30 @@ impl<S: Scalar> FocusSearch<S> {
         self.begin_full()
     }
 
-    /// Starts a hybrid search from a phase-detect hint; returns the first move.
+    /// Starts a hybrid search from a focus target (the output of
+    /// [`phase_detect_target`](crate::af_assist::phase_detect_target) or
+    /// [`range_sensor_target`](crate::af_assist::range_sensor_target)); returns
+    /// the first move.
     ///
     /// Errors (and the search stays as it was) for a confidence that is NaN,
     /// infinite or outside [0, 1], or a target code off travel.
-    pub fn start_with_hint(&mut self, hint: PhaseHint<S>) -> Result<Step, Error> {
+    pub fn start_with_hint(&mut self, hint: FocusTarget<S>) -> Result<Step, Error> {
         let confidence = hint
             .confidence
             .check_range(Quantity::Confidence, S::ZERO, S::ONE)?;
         let c = self.config;
-        if !(c.code_min..=c.code_max).contains(&hint.target_code) {
+        let target_code = i32::from(hint.code);
+        if !(c.code_min..=c.code_max).contains(&target_code) {
             return Err(Error::OutOfRange(Quantity::ActuatorCode));
         }
         if confidence < c.hint_min_confidence {
             return Ok(self.start());
         }
         self.frames = 0;
-        self.park_code = hint.target_code;
+        self.park_code = target_code;
         let half = c.hint_half_window * c.fine_step;
-        let lo = hint.target_code.saturating_sub(half).max(c.code_min);
-        let hi = hint.target_code.saturating_add(half).min(c.code_max);
+        let lo = target_code.saturating_sub(half).max(c.code_min);
+        let hi = target_code.saturating_add(half).min(c.code_max);
         Ok(self.begin_scan(ScanKind::Hint, lo, hi, c.fine_step))
     }
 

@@ -14,6 +14,13 @@
 //! does the slow thing on a small synthetic texture, and the tests check the
 //! model against it.
 //!
+//! The geometry is the library's own: the lens extension from
+//! [`extension_ratio_for_vergence`], the blur circle from
+//! [`blur_circle_diameter`], the defocus scale from
+//! [`depth_of_focus_at_magnification`], the fallback position from
+//! [`hyperfocal_extension`]; [`LensModel::factory_calibration`] gives the
+//! [`ActuatorModel`] that the assist routines need to drive this module.
+//!
 //! Units: subject vergence in dioptres (1/m; 0 is infinity), lengths in mm.
 //! The metric is returned in 2^-16 units of the model's scale (a sharp subject
 //! of contrast 1 gives about 65 536).
@@ -28,9 +35,15 @@
 //! assert!(cam.focus_error_dof().unwrap() < 1.0);
 //! ```
 
+use crate::actuator::{ActuatorModel, CalibrationPoint};
+use crate::af_assist::FocusTarget;
 use crate::error::{Error, Quantity};
+use crate::focus::{
+    SubjectDistance, blur_circle_diameter, depth_of_focus_at_magnification,
+    extension_ratio_for_vergence, hyperfocal_extension, subject_distance_from_extension,
+};
 use crate::focus_metric::{Roi, tenengrad};
-use crate::focus_search::{FocusSearch, PhaseHint, Step, split_floor, unit_to_q16};
+use crate::focus_search::{FocusSearch, Step, split_floor, unit_to_q16};
 use crate::lit;
 use crate::scalar::Scalar;
 
@@ -184,36 +197,82 @@ impl<S: Scalar> LensModel<S> {
             .ok_or(Error::Overflow)
     }
 
+    /// Extension ratio (magnification) and extension, mm, that focus the scene,
+    /// from [`extension_ratio_for_vergence`] (vergence in dioptres is per 1000 mm).
+    fn subject_extension(&self, scene: &Scene<S>) -> Result<(S, S), Error> {
+        self.check()?;
+        scene.check()?;
+        let per_mm = scene.vergence_dpt.mul(lit!(S, 0.001))?;
+        let w = extension_ratio_for_vergence(self.focal_length_mm, per_mm)?;
+        Ok((w, self.focal_length_mm.mul(w)?))
+    }
+
+    /// The true defocus with the lens at `code`: the lens extension there minus
+    /// the extension that focuses the scene, mm (positive: the lens is out too
+    /// far, focused nearer than the subject), and the subject's magnification.
+    /// What a phase-detect sensor measures, before its own errors.
+    pub fn defocus_mm(&self, scene: &Scene<S>, code: i32) -> Result<(S, S), Error> {
+        let (w, e_subject) = self.subject_extension(scene)?;
+        Ok((self.extension_at(code)?.sub(e_subject)?, w))
+    }
+
+    /// What the module's factory calibration would store: the code nearest to
+    /// infinity focus and the subject focused at the top of travel, as an
+    /// [`ActuatorModel`] over travel 0 to `code_max` (lengths in mm). The
+    /// simulated actuator is linear in extension, as the model assumes, so the
+    /// two agree to the rounding of the infinity code.
+    ///
+    /// [`Error::OutOfRange`] of [`Quantity::ActuatorCode`] when infinity lies
+    /// off travel or `code_max` exceeds [`MAX_CODE`](crate::actuator::MAX_CODE);
+    /// [`Error::Overflow`] when the macro distance does not fit the type.
+    pub fn factory_calibration(&self) -> Result<ActuatorModel<S>, Error> {
+        self.check()?;
+        let infinity = self.code_at(S::ZERO)?;
+        let top =
+            u16::try_from(self.code_max).map_err(|_| Error::OutOfRange(Quantity::ActuatorCode))?;
+        let infinity =
+            u16::try_from(infinity).map_err(|_| Error::OutOfRange(Quantity::ActuatorCode))?;
+        let near = subject_distance_from_extension(
+            self.focal_length_mm,
+            self.extension_at(self.code_max)?,
+        )?;
+        ActuatorModel::from_table(
+            self.focal_length_mm,
+            &[
+                CalibrationPoint {
+                    code: infinity,
+                    subject: SubjectDistance::Infinity,
+                },
+                CalibrationPoint {
+                    code: top,
+                    subject: near,
+                },
+            ],
+        )?
+        .with_travel(0, top)
+    }
+
     /// The code whose extension focuses the scene (nearest code, may lie off
     /// travel).
     pub fn code_for_scene(&self, scene: &Scene<S>) -> Result<i32, Error> {
-        self.check()?;
-        scene.check()?;
-        self.code_at(extension_for_vergence(
-            self.focal_length_mm,
-            scene.vergence_dpt,
-        )?)
+        self.code_at(self.subject_extension(scene)?.1)
     }
 
     /// The code focused at the hyperfocal distance, where the lens extension
-    /// is `N·c` (f-number times circle of confusion).
+    /// is `N·c` ([`hyperfocal_extension`]).
     pub fn hyperfocal_code(&self) -> Result<i32, Error> {
         self.check()?;
-        self.code_at(self.f_number.mul(self.circle_of_confusion_mm)?)
+        self.code_at(hyperfocal_extension(
+            self.f_number,
+            self.circle_of_confusion_mm,
+        )?)
     }
 
-    /// Blur-circle diameter on the sensor, pixels, with the lens at `code`.
+    /// Blur-circle diameter on the sensor, pixels, with the lens at `code`
+    /// ([`blur_circle_diameter`]).
     pub fn blur_px(&self, scene: &Scene<S>, code: i32) -> Result<S, Error> {
-        self.check()?;
-        scene.check()?;
-        let e_subject = extension_for_vergence(self.focal_length_mm, scene.vergence_dpt)?;
-        blur_circle_mm(
-            self.focal_length_mm,
-            self.f_number,
-            self.extension_at(code)?,
-            e_subject,
-        )?
-        .div(self.pixel_pitch_mm)
+        let (shift, w) = self.defocus_mm(scene, code)?;
+        blur_circle_diameter(self.f_number, shift, w)?.div(self.pixel_pitch_mm)
     }
 
     /// The noise-free metric model, in units of a sharp full-contrast subject.
@@ -232,27 +291,6 @@ impl<S: Scalar> LensModel<S> {
             .mul(sharpness)?
             .add(self.metric_floor)
     }
-}
-
-/// Lens extension that focuses a subject at vergence `v` (dioptres), mm:
-/// the thin-lens `f² / (u − f)` with `u = 1000 / v` mm, written as
-/// `f²·v·10⁻³ / (1 − f·v·10⁻³)` so that infinity (v = 0) is exact and no
-/// intermediate exceeds the range of `I8F24`.
-fn extension_for_vergence<S: Scalar>(f_mm: S, v_dpt: S) -> Result<S, Error> {
-    let fv = f_mm.mul(v_dpt)?.mul(lit!(S, 0.001))?;
-    if fv >= S::ONE {
-        return Err(Error::OutOfRange(SIM));
-    }
-    f_mm.mul(fv)?.div(S::ONE.sub(fv)?)
-}
-
-/// Geometric blur-circle diameter, mm, on a sensor at extension `e` when the
-/// subject is imaged at extension `e_subject`: aperture `f/N` times
-/// `|e − e_subject| / (f + e_subject)`.
-fn blur_circle_mm<S: Scalar>(f_mm: S, n: S, e: S, e_subject: S) -> Result<S, Error> {
-    f_mm.div(n)?
-        .mul(e.sub(e_subject)?.abs()?)?
-        .div(f_mm.add(e_subject)?)
 }
 
 /// A subject: how far (as vergence) and how contrasted.
@@ -335,13 +373,18 @@ impl<S: Scalar> SimCamera<S> {
         unit_to_q16(m, SIM).map(u64::from)
     }
 
-    /// Defocus at the current position in depth-of-focus units: blur circle
-    /// over circle of confusion (≤ 1 is within the depth of focus).
+    /// Defocus at the current position in depth-of-focus units: the image-plane
+    /// shift over half the [`depth_of_focus_at_magnification`] (≤ 1 is within
+    /// the depth of focus; equals the blur circle over the circle of confusion).
     pub fn focus_error_dof(&self) -> Result<S, Error> {
-        self.lens
-            .blur_px(&self.scene, self.position)?
-            .mul(self.lens.pixel_pitch_mm)?
-            .div(self.lens.circle_of_confusion_mm)
+        let (shift, w) = self.lens.defocus_mm(&self.scene, self.position)?;
+        let half_depth = depth_of_focus_at_magnification(
+            self.lens.f_number,
+            self.lens.circle_of_confusion_mm,
+            w,
+        )?
+        .mul(S::HALF)?;
+        shift.abs()?.div(half_depth)
     }
 }
 
@@ -351,7 +394,7 @@ impl<S: Scalar> SimCamera<S> {
 pub fn run_search<S: Scalar>(
     camera: &mut SimCamera<S>,
     search: &mut FocusSearch<S>,
-    hint: Option<PhaseHint<S>>,
+    hint: Option<FocusTarget<S>>,
 ) -> Result<Step, Error> {
     let mut step = match hint {
         Some(h) => search.start_with_hint(h)?,

@@ -9,7 +9,9 @@ use embedded_optics::actuator::{
 };
 use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
 use embedded_optics::af_assist::{self, PhaseDetectCalibration, RangeSensorMount};
-use embedded_optics::focus::{self, SubjectDistance};
+use embedded_optics::focus::{self, FocusSweepPlan, SubjectDistance};
+use embedded_optics::focus_search::{FocusSearch, SearchConfig};
+use embedded_optics::focus_sim::{LensModel, Scene};
 use embedded_optics::{Scalar, lens};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
@@ -251,6 +253,85 @@ impl DelayNs for NoDelay {
     fn delay_ns(&mut self, _: u32) {}
 }
 
+/// An `Ok` value is finite and not negative.
+fn non_negative<S: Scalar>(r: Result<S, embedded_optics::Error>) {
+    if let Ok(v) = r {
+        assert!(v.is_finite() && v.to_f64() >= 0.0, "{v:?}");
+    }
+}
+
+/// The forms the autofocus simulation and search settings share (vergence form
+/// of the extension, blur circle, depth of focus at a magnification, hyperfocal
+/// extension) and `SearchConfig::from_sweep_plan` on arbitrary plans and
+/// models. `exact`: the type is `f64`, and the blur-versus-depth identity is
+/// checked.
+fn shared_focus_forms<S: Scalar>(x: [f64; 4], codes: [u16; 2], exact: bool) {
+    let (Some(a), Some(b), Some(c), Some(d)) = (to::<S>(x[0]), to(x[1]), to(x[2]), to(x[3])) else {
+        return;
+    };
+    non_negative(focus::extension_ratio_for_vergence(a, b));
+    non_negative(focus::blur_circle_diameter(a, b, c));
+    non_negative(focus::depth_of_focus_at_magnification(a, b, c));
+    non_negative(focus::hyperfocal_extension(a, b));
+    // Blur at half the depth of focus is the circle of confusion.
+    if let Ok(t) = focus::depth_of_focus_at_magnification(a, b, c)
+        && let Ok(half) = t.mul(S::HALF)
+        && let Ok(blur) = focus::blur_circle_diameter(a, half, c)
+        && exact
+    {
+        assert!(
+            (blur.to_f64() - b.to_f64()).abs() <= 1e-12 * b.to_f64(),
+            "{x:?}"
+        );
+    }
+    let plan = FocusSweepPlan {
+        start_extension: a,
+        spacing: b,
+        steps: codes[0] % 5000,
+    };
+    let model = ActuatorModel::from_table(
+        d,
+        &[
+            CalibrationPoint {
+                code: codes[0],
+                subject: SubjectDistance::Infinity,
+            },
+            CalibrationPoint {
+                code: codes[1],
+                subject: SubjectDistance::Finite(c),
+            },
+        ],
+    );
+    if let Ok(model) = model
+        && let Ok(cfg) = SearchConfig::from_sweep_plan(&plan, &model, c)
+    {
+        assert!(FocusSearch::new(cfg).is_ok(), "{cfg:?}");
+    }
+}
+
+/// The simulated module's factory calibration and defocus on arbitrary lenses.
+fn sim_calibration<S: Scalar>(x: [f64; 4], code: i32) {
+    let (Some(a), Some(b), Some(c), Some(d)) = (to::<S>(x[0]), to(x[1]), to(x[2]), to(x[3])) else {
+        return;
+    };
+    let lens = LensModel {
+        focal_length_mm: a,
+        f_number: b,
+        extension_at_code_zero_mm: c,
+        ..LensModel::<S>::phone_module()
+    };
+    let scene = Scene {
+        vergence_dpt: d,
+        contrast: S::ONE,
+    };
+    if let Ok(model) = lens.factory_calibration() {
+        assert_eq!(model.max_code(), 1023);
+    }
+    if let Ok((shift, m)) = lens.defocus_mm(&scene, code) {
+        assert!(shift.is_finite() && m.is_finite() && m.to_f64() >= 0.0);
+    }
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(600))]
 
@@ -268,6 +349,22 @@ proptest! {
         focus_routines::<f64>(x, overlap);
         focus_routines::<I32F32>(x, overlap);
         focus_routines::<I8F24>(x, overlap);
+    }
+
+    #[test]
+    fn shared_focus_forms_never_panic(
+        a in any_input(), b in any_input(), c in any_input(), d in any_input(),
+        codes in proptest::array::uniform2(any::<u16>()), code in any::<i32>(),
+    ) {
+        let x = [a, b, c, d];
+        shared_focus_forms::<f64>(x, codes, true);
+        shared_focus_forms::<f32>(x, codes, false);
+        shared_focus_forms::<I32F32>(x, codes, false);
+        shared_focus_forms::<I8F24>(x, codes, false);
+        sim_calibration::<f64>(x, code);
+        sim_calibration::<f32>(x, code);
+        sim_calibration::<I32F32>(x, code);
+        sim_calibration::<I8F24>(x, code);
     }
 
     #[test]

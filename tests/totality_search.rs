@@ -2,12 +2,11 @@
 //! sequences, settings and hints with NaN and infinities. No panic, typed errors,
 //! and the search always ends within its frame budget.
 
+use embedded_optics::af_assist::FocusTarget;
 use embedded_optics::focus_metric::{
     FocusMetric, Normalisation, Roi, brenner, laplacian_variance, mean_level, tenengrad,
 };
-use embedded_optics::focus_search::{
-    FocusSearch, PeakFit, PhaseHint, SearchConfig, Step, interpolate_peak,
-};
+use embedded_optics::focus_search::{FocusSearch, PeakFit, SearchConfig, Step, interpolate_peak};
 use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, run_search, textured_target_metric};
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
@@ -98,7 +97,7 @@ proptest! {
         coarse_div in 1i32..40,
         fine_div in 1i32..8,
         margin in 0i32..40,
-        hint in proptest::option::of((any::<i32>(), any_real())),
+        hint in proptest::option::of((any::<u16>(), any_real())),
         ratios in (0.0..1.0f64, 0.0..1.0f64, 0.0..1.0f64),
     ) {
         let coarse = (span / coarse_div).max(1);
@@ -120,8 +119,8 @@ proptest! {
         };
         let Ok(mut search) = FocusSearch::new(cfg) else { return Ok(()) };
         let mut step = match hint {
-            Some((target, confidence)) => match search.start_with_hint(PhaseHint {
-                target_code: target,
+            Some((target, confidence)) => match search.start_with_hint(FocusTarget {
+                code: target,
                 confidence: confidence as f32,
             }) {
                 Ok(s) => s,
@@ -203,8 +202,8 @@ fn setting_checks<S: Scalar>(a: f64, b: f64, c: f64, d: f64) {
         "{cfg:?}"
     );
     let mut search = FocusSearch::new(SearchConfig::<S>::typical(0, 1023, 60)).unwrap();
-    let hint = search.start_with_hint(PhaseHint {
-        target_code: 500,
+    let hint = search.start_with_hint(FocusTarget {
+        code: 500,
         confidence: a,
     });
     assert_eq!(hint.is_ok(), unit(a));

@@ -227,3 +227,25 @@ fn metric_model_matches_blurred_texture() {
     };
     assert_eq!(lens.metric_model(&flat, 500).unwrap(), lens.metric_floor);
 }
+
+/// The vergence form of the lens extension, the blur circle and the hyperfocal
+/// extension against independently computed values.
+#[test]
+fn vergence_extension_blur_circle_and_hyperfocal_extension() {
+    use embedded_optics::focus::{
+        blur_circle_diameter, extension_ratio_for_vergence, hyperfocal_extension,
+    };
+    // mpmath 1.3.0, 30 digits: f=mpf('0.0042'); v=mpf('3.7'); f*v/(1-f*v)
+    // (equal to f/(1/v − f) to all 30 digits).
+    let w: f64 = extension_ratio_for_vergence(0.0042, 3.7).unwrap();
+    assert!((w - 0.015_785_303_618_227_25).abs() < 1e-17, "{w}");
+    // mpmath 1.3.0, 30 digits: f=mpf('4.2'); N=mpf('1.8'); d=mpf('0.0123');
+    // m=mpf('0.031'); (f/N)*d/(f*(1+m)): the aperture's cone cut |d| from its apex.
+    let b: f64 = blur_circle_diameter(1.8, -0.0123, 0.031).unwrap();
+    assert!((b - 0.006_627_869_382_476_56).abs() < 1e-17, "{b}");
+    // 50 mm f/8, c = 0.03 mm: the hyperfocal distance 10.467 m (the
+    // `focus::hyperfocal_distance` doc example) needs f²/(H − f) = 0.24 mm of extension
+    // (mpmath 1.3.0: f**2/(H-f) with H=f**2/(8*0.03)+f).
+    let e: f64 = hyperfocal_extension(8.0, 0.03).unwrap();
+    assert!((e - 0.24).abs() < 1e-15, "{e}");
+}

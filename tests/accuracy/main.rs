@@ -4,6 +4,7 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+mod afint;
 mod cal;
 mod chain;
 mod dispersion;
@@ -80,6 +81,10 @@ fn all_rows() -> Vec<Row> {
         row::<chain::PixelToIndex>(),
         row::<chain::PixelSlope>(),
         row::<chain::CorrectionApply>(),
+        row::<afint::ExtensionForVergence>(),
+        row::<afint::BlurCircle>(),
+        row::<afint::DepthOfFocusAtMagnification>(),
+        row::<afint::HyperfocalExtension>(),
     ]
 }
 
