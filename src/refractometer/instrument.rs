@@ -422,10 +422,20 @@ where
         let d_px = per_px.mul(self.correction.slope(raw)?)?.mul(d_led)?;
         let u_px = S::from_ratio(avg.position_uncertainty, SUBPIXEL)?;
         let term_px = d_px.mul(u_px)?.abs()?;
+        // Within 0.5 K of an end of the compensation's range (or of a ragged
+        // table's edge) one side is out of range: a one-sided difference there,
+        // so that a reading the models cover is never refused for its
+        // uncertainty.
         let ht = crate::lit!(S, 0.5);
-        let warm = self.chain(avg.position, t.add(ht)?)?;
-        let cool = self.chain(avg.position, t.sub(ht)?)?;
-        let term_t = warm.sub(cool)?.mul(self.u_temperature)?.abs()?;
+        let warm = self.chain(avg.position, t.add(ht)?);
+        let cool = self.chain(avg.position, t.sub(ht)?);
+        let per_kelvin = match (warm, cool) {
+            (Ok(w), Ok(c)) => w.sub(c)?,
+            (Ok(w), Err(_)) => w.sub(nd20)?.mul(S::TWO)?,
+            (Err(_), Ok(c)) => nd20.sub(c)?.mul(S::TWO)?,
+            (Err(e), Err(_)) => return Err(e),
+        };
+        let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
         let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
 
         let stable = self.settle(nd20, t)?;
