@@ -25,6 +25,7 @@ use embedded_optics::refractometer::compensation::{SucroseCompensation, WaterCom
 use embedded_optics::refractometer::forward::{Rng, SampleState, render};
 use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::instrument::{Instrument, Reading};
+use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, Slot, choose_slots};
 use embedded_optics::refractometer::scales::SucroseBrix;
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
@@ -150,7 +151,7 @@ const THIRD_BRIX: f64 = 30.0;
 /// at the LED), a 60 %Brix span and optionally a 30 %Brix third standard. Not
 /// at 20.0 °C: the OIV rows end there, and a thermistor reading 20.01 °C would
 /// put the sucrose standard outside its compensation.
-fn calibrate<S: Scalar>(third: bool) -> Correction<S> {
+fn calibrated<S: Scalar>(third: bool) -> Chain<S, SucroseCompensation> {
     let mut inst = chain::<S, _>(sucrose());
     let t = 19.5;
     let ts = sensed::<S>(t);
@@ -177,7 +178,8 @@ fn calibrate<S: Scalar>(third: bool) -> Correction<S> {
         inst.add_standard(&avg, nd20, &WaterLikeDispersion, &sucrose())
             .unwrap();
     }
-    inst.correction()
+    inst.restart();
+    inst
 }
 
 /// Which compensation a grid point is read with.
@@ -295,7 +297,7 @@ fn bias<S: Scalar>(correction: Correction<S>, thermistor: bool, verbose: bool) -
 }
 
 fn report<S: Scalar>(name: &str, third: bool, thermistor: bool) -> Bias {
-    let b = bias::<S>(calibrate::<S>(third), thermistor, false);
+    let b = bias::<S>(calibrated::<S>(third).correction(), thermistor, false);
     println!(
         "{name:>6}: worst |error| {:.2e} nD, {:.4} %Brix; mean error {:+.2e} nD, {:+.4} %Brix",
         b.worst_nd, b.worst_brix, b.mean_nd, b.mean_brix
@@ -323,7 +325,7 @@ fn real_models_bias_every_type() {
         every_type_within_target(third, false);
     }
     // The f64 rows in full, for the record.
-    bias::<f64>(calibrate::<f64>(true), false, true);
+    bias::<f64>(calibrated::<f64>(true).correction(), false, true);
 }
 
 #[test]
@@ -389,4 +391,132 @@ fn water_zero_reference_against_iapws() {
         }
         assert!(vacuum.abs() < 3e-6, "{t}: {vacuum}");
     }
+}
+
+/// nD20 of a 40 %Brix sample at 15 °C read by a fresh unit with `correction`.
+fn reading_with<S: Scalar>(correction: Correction<S>, f: &[u16]) -> f64 {
+    let mut inst = chain::<S, _>(sucrose());
+    inst.set_correction(correction);
+    read(&mut inst, f, sensed::<S>(15.0)).unwrap().nd20.to_f64()
+}
+
+/// Boots a fresh unit from two flash slots as a firmware would: choose, then
+/// restore (or stay uncalibrated).
+fn boot<S: Scalar>(slot_a: &[u8], slot_b: &[u8]) -> (Option<Slot>, Correction<S>) {
+    let mut inst = chain::<S, _>(sucrose());
+    let choice = choose_slots(slot_a, slot_b);
+    let slot = choice.current.map(|(slot, record)| {
+        inst.restore(&record).expect("a record we wrote restores");
+        slot
+    });
+    (slot, inst.correction())
+}
+
+/// Calibrate → record → torn or corrupted write of the next record →
+/// choose_slots → restore: the reading is the one before the write (or, for a
+/// complete write, the new calibration's). Returns the largest reading change
+/// across a restore, nD.
+fn survives_power_loss<S: Scalar>() -> f64 {
+    let sample = frame(sucrose_at_led(40.0, 15.0, &sucrose()), 15.0);
+    let erased = [0xFFu8; RECORD_LEN];
+    // First calibration (zero + span), written to the erased flash.
+    let unit = calibrated::<S>(false);
+    let choice = choose_slots(&erased, &erased);
+    assert_eq!(choice.write_to, Slot::A);
+    let first = unit.calibration_record(&choice).unwrap();
+    assert_eq!((first.sequence, first.led_wavelength_pm), (1, 590_000));
+    // The zero was taken at 19.5 °C as the thermistor gave it.
+    assert!((first.zero_temperature_mc - 19_500).abs() < 30, "{first:?}");
+    let slot_a = first.encode();
+    let before_first = reading_with(unit.correction(), &sample);
+    // Recalibration (three standards): the record to write to slot B.
+    let unit = calibrated::<S>(true);
+    let choice = choose_slots(&slot_a, &erased);
+    assert_eq!(choice.write_to, Slot::B);
+    let second = unit.calibration_record(&choice).unwrap();
+    assert_eq!(second.sequence, 2);
+    let new = second.encode();
+    let before_second = reading_with(unit.correction(), &sample);
+    assert!(
+        (before_second - before_first).abs() > 1e-9,
+        "two different calibrations"
+    );
+
+    let mut worst: f64 = 0.0;
+    let mut check = |slot_b: &[u8], expect: Slot| {
+        let (slot, c) = boot::<S>(&slot_a, slot_b);
+        assert_eq!(slot, Some(expect));
+        let want = if expect == Slot::A {
+            before_first
+        } else {
+            before_second
+        };
+        worst = worst.max((reading_with(c, &sample) - want).abs());
+    };
+    for k in 0..RECORD_LEN {
+        // Power lost after k bytes: the rest of the slot is still erased.
+        let mut torn = erased;
+        torn[..k].copy_from_slice(&new[..k]);
+        check(&torn, Slot::A);
+        // A short read of the slot.
+        check(&new[..k], Slot::A);
+        // One flipped bit anywhere.
+        let mut flipped = new;
+        flipped[k] ^= 1 << (k % 8);
+        check(&flipped, Slot::A);
+    }
+    check(&new, Slot::B);
+    // Nothing valid at all: the unit stays uncalibrated (identity).
+    assert_eq!(boot::<S>(&erased, &erased), (None, Correction::identity()));
+    worst
+}
+
+#[test]
+fn calibration_survives_power_loss_every_type() {
+    let worst = [
+        survives_power_loss::<f64>(),
+        survives_power_loss::<f32>(),
+        survives_power_loss::<I32F32>(),
+        survives_power_loss::<I8F24>(),
+    ];
+    println!("largest reading change across a restore (f64 f32 I32F32 I8F24): {worst:?}");
+    // f64 coefficients round to I32F32's 2.3e-10; the others are exact.
+    assert!(worst[0] < 1e-9);
+    assert_eq!(&worst[1..], &[0.0; 3]);
+}
+
+#[test]
+fn restore_refuses_foreign_records() {
+    let mut inst = calibrated::<f64>(false);
+    let kept = inst.correction();
+    // Another LED's calibration.
+    let other = CalibrationRecord::factory(650_000);
+    assert_eq!(
+        inst.restore(&other),
+        Err(Error::OutOfRange(embedded_optics::Quantity::Wavelength))
+    );
+    // Coefficients no calibration makes: water moved by 0.05, or scaled by 1.2.
+    for c in [
+        Correction {
+            c0: 0.05,
+            c1: 1.0,
+            c2: 0.0,
+        },
+        Correction {
+            c0: -0.2666,
+            c1: 1.2,
+            c2: 0.0,
+        },
+    ] {
+        let bad = CalibrationRecord::factory(590_000)
+            .with_correction(&c)
+            .unwrap();
+        assert_eq!(
+            inst.restore(&bad),
+            Err(Error::OutOfRange(
+                embedded_optics::Quantity::RefractiveIndex
+            ))
+        );
+    }
+    assert_eq!(inst.correction(), kept);
 }

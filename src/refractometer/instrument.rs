@@ -113,11 +113,13 @@
 //! ```
 
 use crate::error::{Error, Quantity};
+use crate::focus_search::split_floor;
 use crate::medium::Medium;
 use crate::refraction::check_index;
 use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
 use crate::refractometer::calibration::{self, Standard};
 use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
+use crate::refractometer::record::{CalibrationRecord, SlotChoice};
 use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use crate::scalar::Scalar;
 
@@ -198,11 +200,14 @@ pub struct Instrument<S, P, W, C, T> {
     geometry: Geometry<S>,
     boundary: BoundaryConfig,
     wavelength: S, // LED centre wavelength, µm
+    led_pm: u32,   // the same, pm, as the calibration record keeps it
     prism: P,
     dispersion: W,
     compensation: C,
     scale: T,
     correction: Correction<S>,
+    /// Temperature of the last water zero (or of the restored record), °C.
+    zero_temperature: S,
     /// Standards read since the last water zero (zero, span).
     standards: [Option<Standard<S>>; 2],
     frames: u8,
@@ -249,15 +254,19 @@ where
         {
             return Err(Error::OutOfRange(Quantity::Value));
         }
+        let wavelength = described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?;
         Ok(Instrument {
             geometry: Geometry::new(&d.geometry)?,
             boundary: d.boundary,
-            wavelength: described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?,
+            wavelength,
+            // Checked above: 300 000 to 1 100 000 pm.
+            led_pm: libm::round(d.led_wavelength_nm * 1000.0) as u32,
             prism,
             dispersion,
             compensation,
             scale,
             correction: Correction::identity(),
+            zero_temperature: crate::lit!(S, 20.0),
             standards: [None, None],
             frames: d.frames_per_reading,
             u_temperature: described(
@@ -294,6 +303,47 @@ where
     /// Sets a correction (e.g. one read back from the calibration record).
     pub fn set_correction(&mut self, c: Correction<S>) {
         self.correction = c;
+    }
+
+    /// The record to write after a calibration, to `choice.write_to` (see
+    /// [`record`](super::record)): the next sequence number, this instrument's
+    /// correction, the water zero's temperature and the LED wavelength.
+    /// Integer arithmetic only for fixed-point `S`.
+    pub fn calibration_record(&self, choice: &SlotChoice) -> Result<CalibrationRecord, Error> {
+        let mut record = choice
+            .next_record(self.led_pm)
+            .with_correction(&self.correction)?;
+        record.zero_temperature_mc = millidegrees(self.zero_temperature)?;
+        record.led_wavelength_pm = self.led_pm;
+        Ok(record)
+    }
+
+    /// Restores the correction from a decoded record (at boot, from
+    /// [`choose_slots`](super::record::choose_slots)`.current`). Refused, with
+    /// the instrument unchanged: a record for another LED wavelength
+    /// (`OutOfRange(Wavelength)`), and coefficients no calibration would have
+    /// made, moving water's index by more than 0.01 or scaling it by more than
+    /// 10 % (`OutOfRange(RefractiveIndex)`). Standards read before are
+    /// forgotten: a new span needs a new zero.
+    pub fn restore(&mut self, record: &CalibrationRecord) -> Result<Correction<S>, Error> {
+        if record.led_wavelength_pm != self.led_pm {
+            return Err(Error::OutOfRange(Quantity::Wavelength));
+        }
+        let c = record.correction::<S>()?;
+        let zero_temperature = S::from_ratio(record.zero_temperature_mc, 1000)?;
+        let water = crate::lit!(S, 1.333);
+        let shift = c.apply(water)?.sub(water)?.abs()?;
+        let slope = c.slope(water)?;
+        if shift > crate::lit!(S, 0.01)
+            || slope < crate::lit!(S, 0.9)
+            || slope > crate::lit!(S, 1.1)
+        {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+        self.correction = c;
+        self.zero_temperature = zero_temperature;
+        self.standards = [None, None];
+        Ok(c)
     }
 
     /// Forgets partial averages and the settling history (new sample).
@@ -489,6 +539,7 @@ where
         let c = calibration::zero(standard)?;
         self.standards = [Some(standard), None];
         self.correction = c;
+        self.zero_temperature = avg.temperature_c;
         Ok(c)
     }
 
@@ -535,6 +586,18 @@ where
         self.correction = c;
         Ok(c)
     }
+}
+
+/// A temperature in m°C, integer steps only (I8F24 holds neither 1000 nor
+/// 80 000): whole degrees, then hundredths, then the last digit rounded.
+fn millidegrees<S: Scalar>(t: S) -> Result<i32, Error> {
+    let (whole, frac) = split_floor(t)?;
+    let (hundredths, rest) = split_floor(frac.mul(crate::lit!(S, 100.0))?)?;
+    let last = rest.mul(crate::lit!(S, 10.0))?.round_to_i32()?;
+    whole
+        .checked_mul(1000)
+        .and_then(|w| w.checked_add(hundredths * 10 + last))
+        .ok_or(Error::Overflow)
 }
 
 /// `√(a² + b² + c²)` scaled by the largest term, so that tiny uncertainties keep
