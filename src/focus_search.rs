@@ -171,9 +171,13 @@ pub(crate) fn unit_to_q16<S: Scalar>(x: S, quantity: Quantity) -> Result<u32, Er
     u32::try_from(crate::actuator::to_code_units(x)?).map_err(|_| Error::Overflow)
 }
 
-/// Integer part (floor) and fraction of a non-negative value.
+/// Integer part (floor) and fraction of a value.
 pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
-    let mut n = x.round_to_i32()?;
+    let mut n = match x.round_to_i32() {
+        Ok(n) => n,
+        // Rounds past the type's range (I8F24 from 127.5 up): half lower not.
+        Err(e) => x.sub(S::HALF).map_err(|_| e)?.round_to_i32()?,
+    };
     if S::from_i32(n)? > x {
         n -= 1;
     }

@@ -14,16 +14,12 @@
 //! a wrong standard, a wrong geometry or a dirty prism, not a calibration.
 
 use crate::error::{Error, Quantity};
+use crate::media::air;
 use crate::medium::{IndexReference, Medium};
 use crate::refraction::check_index;
 use crate::refractometer::geometry::Correction;
 use crate::refractometer::{SampleCompensation, WavelengthCorrection};
 use crate::scalar::Scalar;
-
-/// Index of standard air relative to vacuum at 589 nm, 15 °C, 101.325 kPa
-/// (Edlén's dispersion formula; from memory): used only to bring a
-/// vacuum-referenced water model to the air reference of the trade tables.
-const AIR_INDEX: f64 = 1.000_277;
 
 /// One standard on the prism: what the geometry read and what it should be.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -48,6 +44,22 @@ impl<S: Scalar> Standard<S> {
 
 /// Index of water (or any [`Medium`]) at the LED wavelength and temperature,
 /// relative to air, for the zero standard.
+///
+/// A vacuum-referenced model is brought to air by the [`air`] model: dry air
+/// at 101.325 kPa and the water's temperature (the air on the prism is at the
+/// instrument's temperature). A fixed 15 °C air index would leave up to 1.9e-5
+/// at 30 °C. The air model's range (−20–50 °C) applies then.
+///
+/// ```
+/// use embedded_optics::media::water::Water;
+/// use embedded_optics::medium::IndexReference;
+/// use embedded_optics::refractometer::calibration::water_reference;
+/// // nD of water at 20 °C relative to air: 1.33299 (common practice).
+/// for model in [Water::new(IndexReference::Air), Water::new(IndexReference::Vacuum)] {
+///     let n: f64 = water_reference(&model, 0.5893, 20.0).unwrap();
+///     assert!((n - 1.33299).abs() < 2e-5);
+/// }
+/// ```
 pub fn water_reference<S: Scalar, M: Medium<S> + ?Sized>(
     water: &M,
     wavelength_um: S,
@@ -56,7 +68,12 @@ pub fn water_reference<S: Scalar, M: Medium<S> + ?Sized>(
     let n = water.index(wavelength_um, temperature_c)?;
     match water.reference() {
         IndexReference::Air => Ok(n),
-        IndexReference::Vacuum => n.div(crate::lit!(S, AIR_INDEX)),
+        IndexReference::Vacuum => air::to_air_relative(
+            n,
+            wavelength_um,
+            temperature_c,
+            crate::lit!(S, air::STANDARD_PRESSURE_KPA),
+        ),
     }
 }
 

@@ -30,94 +30,96 @@
 //! measurement, not that decision. Wear eye and skin protection with acids and
 //! glycols as the local rules require.
 //!
+//! One frame through the whole chain with the real models, from the
+//! thermistor's ADC code to %Brix (frames from the forward model stand in for
+//! the sensor):
+//!
 //! ```
-//! use embedded_optics::Error;
-//! use embedded_optics::medium::{IndexReference, Medium};
-//! use embedded_optics::refractometer::*;
-//! use embedded_optics::refractometer::boundary::*;
-//! use embedded_optics::refractometer::forward::*;
+//! use embedded_optics::media::{glass::Glass, water::Water};
+//! use embedded_optics::medium::IndexReference;
+//! use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
+//! use embedded_optics::refractometer::calibration::{standard_reference, water_reference};
+//! use embedded_optics::refractometer::compensation::SucroseCompensation;
+//! use embedded_optics::refractometer::forward::{render, Rng, SampleState, SensorScene};
 //! use embedded_optics::refractometer::geometry::GeometryDescription;
-//! use embedded_optics::refractometer::instrument::*;
-//!
-//! // Test doubles, not physics: a prism of fixed index, water of fixed index,
-//! // a sample without dispersion or temperature dependence, and a scale that
-//! // reads nD itself.
-//! struct Glass;
-//! impl Medium<f64> for Glass {
-//!     fn index(&self, _: f64, _: f64) -> Result<f64, Error> { Ok(1.72) }
-//!     fn reference(&self) -> IndexReference { IndexReference::Air }
-//! }
-//! struct Water;
-//! impl Medium<f64> for Water {
-//!     fn index(&self, _: f64, _: f64) -> Result<f64, Error> { Ok(1.333) }
-//!     fn reference(&self) -> IndexReference { IndexReference::Air }
-//! }
-//! struct Plain;
-//! impl WavelengthCorrection<f64> for Plain {
-//!     fn to_nd(&self, n: f64, _: f64) -> Result<f64, Error> { Ok(n) }
-//! }
-//! impl SampleCompensation<f64> for Plain {
-//!     fn to_reference(&self, nd: f64, _: f64) -> Result<f64, Error> { Ok(nd) }
-//! }
-//! impl TradeScale<f64> for Plain {
-//!     fn value_at(&self, nd20: f64) -> Result<f64, Error> { Ok(nd20) }
-//!     fn nd20_at(&self, v: f64) -> Result<f64, Error> { Ok(v) }
-//!     fn unit(&self) -> &'static str { "nD" }
-//! }
-//!
-//! // An invented design: 512 pixels of 14 µm, 30 mm optics, apex 53.5°.
+//! use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
+//! use embedded_optics::refractometer::{record::choose_slots, scales::SucroseBrix, TradeScale};
+//! use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
+//! use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
+//! # fn main() -> Result<(), embedded_optics::Error> {
+//! // An invented handheld: 512 pixels of 14 µm, 30 mm optics, apex 53.5°, 590 nm LED.
 //! const GEOMETRY: GeometryDescription = GeometryDescription {
 //!     pixel_pitch_um: 14.0, focal_length_mm: 30.0, axis_offset_px: 256.0,
 //!     apex_angle_deg: 53.5, reversed: false,
 //! };
 //! const DESCRIPTION: InstrumentDescription = InstrumentDescription {
-//!     geometry: GEOMETRY,
-//!     boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
-//!     led_wavelength_nm: 589.3,
-//!     frames_per_reading: 1,
-//!     temperature_uncertainty_c: 0.1,
-//!     calibration_uncertainty: 2e-5,
-//!     settle_readings: 3,
-//!     settle_band_nd: 2e-5,
+//!     geometry: GEOMETRY, boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
+//!     led_wavelength_nm: 590.0, frames_per_reading: 1, temperature_uncertainty_c: 0.1,
+//!     calibration_uncertainty: 2e-5, settle_readings: 3, settle_band_nd: 2e-5,
 //!     settle_band_c: 0.1,
 //! };
-//! let mut inst = Instrument::new(&DESCRIPTION, Glass, Plain, Plain, Plain).unwrap();
+//! // Dense flint prism from its datasheet (nd, Vd, dn/dT), IAPWS water for the zero,
+//! // water-like sample dispersion, OIV sucrose compensation, ICUMSA %Brix.
+//! let prism = Glass::from_nd_vd(1.7174, 29.5, 4.0)?;
+//! let water = Water::new(IndexReference::Air);
+//! let sucrose = SucroseCompensation::oiv();
+//! let mut inst = Instrument::new(&DESCRIPTION, prism, WaterLikeDispersion, sucrose, SucroseBrix)?;
 //!
-//! // Frames from the forward model stand in for the sensor.
-//! let scene = SensorScene {
-//!     geometry: GEOMETRY, led_centre_nm: 589.3, led_fwhm_nm: 0.0, blur_px: 1.5,
-//!     full_scale: 3000.0, dark_level: 100.0, read_noise: 3.0,
-//!     shot_noise_per_count: 0.0, response_spread: 0.0, adc_max: 4095,
+//! // Temperature: 10 kΩ NTC (β 3950 K) under a 10 kΩ resistor, 12-bit ADC.
+//! let divider = Divider {
+//!     placement: Placement::ThermistorLowSide, reference_ohms: 10_000, adc_bits: 12,
+//!     rail_margin_codes: 4,
 //! };
-//! let mut rng = Rng::new(7);
+//! let ntc = Beta { beta_k: 3950, r0_ohms: 10_000, t0_c: 25.0 };
+//! let t: f64 = divider.temperature_c(&ntc, 2511)?;
+//! assert!((t - 15.0).abs() < 0.02);
+//!
+//! // The forward model's frame of a sample whose index at the LED is `n`.
+//! let scene = SensorScene {
+//!     geometry: GEOMETRY, led_centre_nm: 590.0, led_fwhm_nm: 0.0, blur_px: 1.5,
+//!     full_scale: 3000.0, dark_level: 100.0, read_noise: 0.0, shot_noise_per_count: 0.0,
+//!     response_spread: 0.0, adc_max: 4095,
+//! };
 //! let mut frame = [0u16; 512];
 //! let mut shoot = |n: f64, frame: &mut [u16]| {
-//!     let sample = SampleState { index: n, dispersion_per_nm: 0.0, temperature_c: 20.0 };
-//!     render(&scene, &Glass, &sample, &mut rng, frame).unwrap();
+//!     let sample = SampleState { index: n, dispersion_per_nm: 0.0, temperature_c: t };
+//!     render(&scene, &prism, &sample, &mut Rng::new(7), frame)
+//! };
+//! // A sucrose solution's index at the LED and `t`: the chain's models inverted.
+//! let at_led = |brix: f64| {
+//!     let nd20 = SucroseBrix.nd20_at(brix)?;
+//!     standard_reference(nd20, &WaterLikeDispersion, &sucrose, 0.590, t)
 //! };
 //!
-//! // Zero with water on the prism.
-//! shoot(1.333, &mut frame);
-//! let water = inst.feed(&frame, 20.0).unwrap().unwrap();
-//! inst.zero_with_water(&water, &Water).unwrap();
+//! // Zero with distilled water, span with a 45 %Brix standard.
+//! shoot(water_reference(&water, 0.590, t)?, &mut frame)?;
+//! let avg = inst.feed(&frame, t)?.unwrap();
+//! inst.zero_with_water(&avg, &water)?;
+//! shoot(at_led(45.0)?, &mut frame)?;
+//! let avg = inst.feed(&frame, t)?.unwrap();
+//! inst.add_standard(&avg, SucroseBrix.nd20_at(45.0)?, &WaterLikeDispersion, &sucrose)?;
+//! // Keep it through power loss: encode, write to the slot not in use.
+//! let erased = [0xFFu8; 64];
+//! let choice = choose_slots(&erased, &erased);
+//! let _bytes_for_slot = (choice.write_to, inst.calibration_record(&choice)?.encode());
 //!
-//! // A sample of nD 1.4000: frame → boundary → geometry → correction → nD20.
-//! shoot(1.4, &mut frame);
-//! let reading = inst.measure(&frame, 20.0).unwrap().unwrap();
-//! // Water zero alone leaves under 1e-4 here; a span standard
-//! // (`add_standard`) takes the rest.
-//! assert!((reading.nd20 - 1.4).abs() < 1e-4);
-//! assert!(reading.uncertainty > 0.0 && !reading.stable);
-//! let b = reading.averaged.boundary;
-//! assert!(b.contrast() > 500 && b.noise_q8 > 0);
+//! // A 20 %Brix juice at 15 °C: frame → boundary → geometry → nD → nD20 → %Brix.
+//! shoot(at_led(20.0)?, &mut frame)?;
+//! let reading = inst.measure(&frame, t)?.unwrap();
+//! assert!((reading.scale_value - 20.0).abs() < 0.015);
+//! assert!(reading.uncertainty > 0.0 && reading.averaged.boundary.contrast() > 500);
+//! # Ok(())
+//! # }
 //! ```
 
 use crate::error::{Error, Quantity};
+use crate::focus_search::split_floor;
 use crate::medium::Medium;
 use crate::refraction::check_index;
 use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
 use crate::refractometer::calibration::{self, Standard};
 use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
+use crate::refractometer::record::{CalibrationRecord, SlotChoice};
 use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use crate::scalar::Scalar;
 
@@ -198,11 +200,14 @@ pub struct Instrument<S, P, W, C, T> {
     geometry: Geometry<S>,
     boundary: BoundaryConfig,
     wavelength: S, // LED centre wavelength, µm
+    led_pm: u32,   // the same, pm, as the calibration record keeps it
     prism: P,
     dispersion: W,
     compensation: C,
     scale: T,
     correction: Correction<S>,
+    /// Temperature of the last water zero (or of the restored record), °C.
+    zero_temperature: S,
     /// Standards read since the last water zero (zero, span).
     standards: [Option<Standard<S>>; 2],
     frames: u8,
@@ -249,15 +254,19 @@ where
         {
             return Err(Error::OutOfRange(Quantity::Value));
         }
+        let wavelength = described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?;
         Ok(Instrument {
             geometry: Geometry::new(&d.geometry)?,
             boundary: d.boundary,
-            wavelength: described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?,
+            wavelength,
+            // Checked above: 300 000 to 1 100 000 pm.
+            led_pm: libm::round(d.led_wavelength_nm * 1000.0) as u32,
             prism,
             dispersion,
             compensation,
             scale,
             correction: Correction::identity(),
+            zero_temperature: crate::lit!(S, 20.0),
             standards: [None, None],
             frames: d.frames_per_reading,
             u_temperature: described(
@@ -294,6 +303,47 @@ where
     /// Sets a correction (e.g. one read back from the calibration record).
     pub fn set_correction(&mut self, c: Correction<S>) {
         self.correction = c;
+    }
+
+    /// The record to write after a calibration, to `choice.write_to` (see
+    /// [`record`](super::record)): the next sequence number, this instrument's
+    /// correction, the water zero's temperature and the LED wavelength.
+    /// Integer arithmetic only for fixed-point `S`.
+    pub fn calibration_record(&self, choice: &SlotChoice) -> Result<CalibrationRecord, Error> {
+        let mut record = choice
+            .next_record(self.led_pm)
+            .with_correction(&self.correction)?;
+        record.zero_temperature_mc = millidegrees(self.zero_temperature)?;
+        record.led_wavelength_pm = self.led_pm;
+        Ok(record)
+    }
+
+    /// Restores the correction from a decoded record (at boot, from
+    /// [`choose_slots`](super::record::choose_slots)`.current`). Refused, with
+    /// the instrument unchanged: a record for another LED wavelength
+    /// (`OutOfRange(Wavelength)`), and coefficients no calibration would have
+    /// made, moving water's index by more than 0.01 or scaling it by more than
+    /// 10 % (`OutOfRange(RefractiveIndex)`). Standards read before are
+    /// forgotten: a new span needs a new zero.
+    pub fn restore(&mut self, record: &CalibrationRecord) -> Result<Correction<S>, Error> {
+        if record.led_wavelength_pm != self.led_pm {
+            return Err(Error::OutOfRange(Quantity::Wavelength));
+        }
+        let c = record.correction::<S>()?;
+        let zero_temperature = S::from_ratio(record.zero_temperature_mc, 1000)?;
+        let water = crate::lit!(S, 1.333);
+        let shift = c.apply(water)?.sub(water)?.abs()?;
+        let slope = c.slope(water)?;
+        if shift > crate::lit!(S, 0.01)
+            || slope < crate::lit!(S, 0.9)
+            || slope > crate::lit!(S, 1.1)
+        {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+        self.correction = c;
+        self.zero_temperature = zero_temperature;
+        self.standards = [None, None];
+        Ok(c)
     }
 
     /// Forgets partial averages and the settling history (new sample).
@@ -422,10 +472,20 @@ where
         let d_px = per_px.mul(self.correction.slope(raw)?)?.mul(d_led)?;
         let u_px = S::from_ratio(avg.position_uncertainty, SUBPIXEL)?;
         let term_px = d_px.mul(u_px)?.abs()?;
+        // Within 0.5 K of an end of the compensation's range (or of a ragged
+        // table's edge) one side is out of range: a one-sided difference there,
+        // so that a reading the models cover is never refused for its
+        // uncertainty.
         let ht = crate::lit!(S, 0.5);
-        let warm = self.chain(avg.position, t.add(ht)?)?;
-        let cool = self.chain(avg.position, t.sub(ht)?)?;
-        let term_t = warm.sub(cool)?.mul(self.u_temperature)?.abs()?;
+        let warm = self.chain(avg.position, t.add(ht)?);
+        let cool = self.chain(avg.position, t.sub(ht)?);
+        let per_kelvin = match (warm, cool) {
+            (Ok(w), Ok(c)) => w.sub(c)?,
+            (Ok(w), Err(_)) => w.sub(nd20)?.mul(S::TWO)?,
+            (Err(_), Ok(c)) => nd20.sub(c)?.mul(S::TWO)?,
+            (Err(e), Err(_)) => return Err(e),
+        };
+        let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
         let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
 
         let stable = self.settle(nd20, t)?;
@@ -479,6 +539,7 @@ where
         let c = calibration::zero(standard)?;
         self.standards = [Some(standard), None];
         self.correction = c;
+        self.zero_temperature = avg.temperature_c;
         Ok(c)
     }
 
@@ -525,6 +586,18 @@ where
         self.correction = c;
         Ok(c)
     }
+}
+
+/// A temperature in m°C, integer steps only (I8F24 holds neither 1000 nor
+/// 80 000): whole degrees, then hundredths, then the last digit rounded.
+fn millidegrees<S: Scalar>(t: S) -> Result<i32, Error> {
+    let (whole, frac) = split_floor(t)?;
+    let (hundredths, rest) = split_floor(frac.mul(crate::lit!(S, 100.0))?)?;
+    let last = rest.mul(crate::lit!(S, 10.0))?.round_to_i32()?;
+    whole
+        .checked_mul(1000)
+        .and_then(|w| w.checked_add(hundredths * 10 + last))
+        .ok_or(Error::Overflow)
 }
 
 /// `√(a² + b² + c²)` scaled by the largest term, so that tiny uncertainties keep

@@ -35,6 +35,8 @@
 //! ```
 
 use crate::error::{Error, Quantity};
+use crate::focus_search::split_floor;
+use crate::refractometer::geometry::Correction;
 use crate::scalar::Scalar;
 use fixed::types::I32F32;
 
@@ -123,7 +125,69 @@ fn coefficient<S: Scalar>(c: I32F32) -> Result<S, Error> {
     int.add(hi)?.add(lo)
 }
 
+/// A coefficient in `S` as I32F32, with integer arithmetic only for
+/// fixed-point `S`: the integer part, then the fraction four bits at a time (no
+/// intermediate above 16, so I8F24 runs it), rounded at 2⁻³². Exact for
+/// I8F24, I32F32 and f32 coefficients within I32F32's range; f64 rounds to
+/// 2.3e-10.
+fn to_coefficient<S: Scalar>(x: S) -> Result<I32F32, Error> {
+    if !x.is_finite() {
+        return Err(Error::NotFinite(Quantity::Value));
+    }
+    let (mut int, mut frac) = split_floor(x)?;
+    // A float a hair below an integer leaves a fraction that rounds to 1.
+    if frac >= S::ONE {
+        int = int.checked_add(1).ok_or(Error::Overflow)?;
+        frac = S::ZERO;
+    }
+    let mut bits: i64 = 0;
+    for _ in 0..8 {
+        let (digit, rest) = split_floor(frac.mul(crate::lit!(S, 16.0))?)?;
+        bits = (bits << 4) + i64::from(digit.clamp(0, 15));
+        frac = rest;
+    }
+    if frac >= S::HALF {
+        bits += 1;
+    }
+    (i64::from(int) << 32)
+        .checked_add(bits)
+        .map(I32F32::from_bits)
+        .ok_or(Error::Overflow)
+}
+
 impl CalibrationRecord {
+    /// The same record holding `correction` (the instrument's, see
+    /// [`Instrument::calibration_record`](super::instrument::Instrument::calibration_record)).
+    /// A coefficient beyond I32F32's range is [`Error::Overflow`].
+    pub fn with_correction<S: Scalar>(self, correction: &Correction<S>) -> Result<Self, Error> {
+        Ok(Self {
+            c0: to_coefficient(correction.c0)?,
+            c1: to_coefficient(correction.c1)?,
+            c2: to_coefficient(correction.c2)?,
+            ..self
+        })
+    }
+
+    /// The stored correction in `S` (integer arithmetic for fixed-point `S`;
+    /// a coefficient beyond `S`'s range is [`Error::Overflow`]).
+    ///
+    /// ```
+    /// use embedded_optics::refractometer::geometry::Correction;
+    /// use embedded_optics::refractometer::record::CalibrationRecord;
+    /// use fixed::types::I8F24;
+    /// let c = Correction { c0: I8F24::from_num(-0.0123), c1: I8F24::from_num(1.0071), c2: I8F24::ZERO };
+    /// let bytes = CalibrationRecord::factory(590_000).with_correction(&c).unwrap().encode();
+    /// let back = CalibrationRecord::decode(&bytes).unwrap().correction::<I8F24>().unwrap();
+    /// assert_eq!(back, c);
+    /// ```
+    pub fn correction<S: Scalar>(&self) -> Result<Correction<S>, Error> {
+        Ok(Correction {
+            c0: coefficient(self.c0)?,
+            c1: coefficient(self.c1)?,
+            c2: coefficient(self.c2)?,
+        })
+    }
+
     /// The identity correction (`c0 = 0, c1 = 1, c2 = 0`), sequence 0, zero at
     /// 20 °C: what a unit leaves the line with before its first calibration.
     pub const fn factory(led_wavelength_pm: u32) -> Self {
@@ -213,11 +277,8 @@ impl CalibrationRecord {
     /// ```
     pub fn correct<S: Scalar>(&self, n: S) -> Result<S, Error> {
         let n = crate::refraction::check_index(n)?;
-        let c0 = coefficient::<S>(self.c0)?;
-        let c1 = coefficient::<S>(self.c1)?;
-        let c2 = coefficient::<S>(self.c2)?;
-        let out = c2.mul_add(n, c1)?.mul_add(n, c0)?;
-        crate::refraction::check_index(out)
+        self.correction::<S>()?
+            .apply(n)
             .map_err(|_| Error::OutOfRange(Quantity::RefractiveIndex))
     }
 }

@@ -58,8 +58,17 @@ const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SucroseBrix;
 
+/// Readings at most this far below the table's first entry (water, 0 %Brix)
+/// read 0 %Brix: pure water, read within the chain's accuracy (2e-5 nD), shows
+/// 0 %Brix rather than an error. Further below is out of range (a wrong zero).
+const SUCROSE_ZERO_BAND: f64 = 2e-5;
+
 impl<S: Scalar> TradeScale<S> for SucroseBrix {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
+        let water = lit!(S, 1.33299);
+        if nd20 < water && nd20 >= lit!(S, 1.33299 - SUCROSE_ZERO_BAND) {
+            return Ok(S::ZERO);
+        }
         ICUMSA_SUCROSE.x_at(nd20, Quantity::RefractiveIndex)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {

@@ -7,6 +7,7 @@ use crate::harness::{Budget, Case, span};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation,
 };
+use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::record::CalibrationRecord;
 use embedded_optics::refractometer::scales::{
     HoneyWater, MustPotentialAlcohol, Salinity, SucroseBrix,
@@ -421,5 +422,35 @@ fn record() -> CalibrationRecord {
         c2: I32F32::from_num(-0.00032),
         zero_temperature_mc: 20_000,
         led_wavelength_pm: 589_300,
+    }
+}
+
+/// A coefficient stored in a record from the instrument's number type and
+/// read back (S → I32F32 bits → S): what a restore after power loss gives.
+pub struct RecordCoefficient;
+impl Case for RecordCoefficient {
+    const NAME: &'static str = "record::CalibrationRecord::with_correction";
+    const UNIT: &'static str = "1 (coefficient)";
+    const DOMAIN: &'static str = "c0 −2 to 2, stored and read back";
+    const BUDGET: Budget = Budget {
+        f64: 1.5e-10, // rounding to I32F32's 2^-32
+        f32: 6.0e-8,  // f32's own rounding near 2
+        i32f32: 0.0,  // exact
+        i8f24: 0.0,   // exact
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(-2.0, 2.0, 401).map(|x| vec![x + 1e-7]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(x[0])
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        let c = Correction {
+            c0: x[0],
+            c1: S::ONE,
+            c2: S::ZERO,
+        };
+        let stored = CalibrationRecord::factory(590_000).with_correction(&c)?;
+        Ok(stored.correction::<S>()?.c0)
     }
 }

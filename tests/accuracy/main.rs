@@ -40,6 +40,7 @@ fn all_rows() -> Vec<Row> {
         row::<cal::ThermistorSteinhartHart>(),
         row::<cal::ThermistorBeta>(),
         row::<cal::RecordCorrection>(),
+        row::<cal::RecordCoefficient>(),
         row::<search::PeakParabolic>(),
         row::<search::PeakGaussian>(),
         row::<search::SimBlur>(),
