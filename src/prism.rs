@@ -34,6 +34,12 @@ pub fn deviation<S: Scalar>(n: S, apex: S, incidence: S) -> Result<S, Error> {
     let i = check_incidence(incidence)?;
     let r1 = i.sin()?.div(n)?.asin()?;
     let r2 = a.sub(r1)?;
+    // The ray meets the second face at r2 from its normal; at or beyond 90° it
+    // never reaches that face (a nearly flat-folded apex with the ray entering
+    // against it): there is no deviation to report.
+    if r2.abs()? >= S::FRAC_PI_2 {
+        return Err(Error::OutOfRange(Quantity::Angle));
+    }
     let s = n.mul(r2.sin()?)?;
     if s.abs()? > S::ONE {
         return Err(Error::TotalInternalReflection);

@@ -210,3 +210,15 @@ proptest! {
         prop_assert!(rejects(Glass::<f64>::fused_silica().index_um(0.6, tg), Quantity::Temperature));
     }
 }
+
+#[test]
+fn a_ray_that_never_reaches_the_exit_face_is_an_error() {
+    // Found by the property test: apex 3.10 rad (177.6°), entering at −0.80 rad,
+    // n = 4.36 meets the second face beyond 90° from its normal.
+    assert_eq!(
+        prism::deviation(4.36f64, 3.10, -0.80),
+        Err(embedded_optics::Error::OutOfRange(
+            embedded_optics::Quantity::Angle
+        ))
+    );
+}
