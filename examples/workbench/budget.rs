@@ -96,12 +96,13 @@ pub fn unit_for(sc: &Scenario, seed: u64, k: usize, on: &[Factor]) -> Unit {
     }
 }
 
-/// Every reading of `trials` units with the factors in `on`.
+/// Every reading of `trials` units with the factors in `on`, on two threads
+/// (each unit has its own seed, so the result does not depend on them).
 pub fn run(
     sc: &Scenario,
     on: &[Factor],
     trials: usize,
-    tick: &mut dyn FnMut(),
+    tick: &(dyn Fn() + Sync),
 ) -> Result<Vec<Outcome>, Error> {
     let d = description(
         sc,
@@ -109,17 +110,24 @@ pub fn run(
         sc.calibration.standard_uncertainty,
     );
     let samples = sample_nd20(sc)?;
-    let mut out = Vec::with_capacity(trials * samples.len() * sc.study.temperatures_c.len());
-    for k in 0..trials {
+    let one = |k: usize| -> Result<Vec<Outcome>, Error> {
         let mut bench = Bench::calibrated(sc, unit_for(sc, sc.study.seed, k, on), &d)?;
+        let mut out = Vec::new();
         for (_, nd20) in &samples {
             for &t in &sc.study.temperatures_c {
                 out.push(bench.read(*nd20, t)?);
             }
         }
         tick();
-    }
-    Ok(out)
+        Ok(out)
+    };
+    let half = trials / 2;
+    let (first, second) = std::thread::scope(|s| {
+        let h = s.spawn(|| (half..trials).map(one).collect::<Result<Vec<_>, _>>());
+        let a = (0..half).map(one).collect::<Result<Vec<_>, _>>();
+        (a, h.join().unwrap_or(Err(Error::Overflow)))
+    });
+    Ok(first?.into_iter().chain(second?).flatten().collect())
 }
 
 /// 95 % bound of |x|: the smallest value that at least 95 % of |x| do not exceed.
@@ -211,7 +219,7 @@ impl Budget {
 }
 
 /// Runs the budget: each factor alone, then all together.
-pub fn budget(sc: &Scenario, tick: &mut dyn FnMut()) -> Result<Budget, Error> {
+pub fn budget(sc: &Scenario, tick: &(dyn Fn() + Sync)) -> Result<Budget, Error> {
     let trials = sc.study.trials;
     let mut alone = Vec::new();
     let mut firmware_terms = Vec::new();

@@ -17,6 +17,11 @@ const COLOURS: [RGBColor; 6] = [
     RGBColor(23, 190, 207),
 ];
 
+/// The short line of a legend entry.
+fn key(x: i32, y: i32, colour: RGBColor) -> PathElement<(i32, i32)> {
+    PathElement::new([(x, y), (x + 16, y)], colour)
+}
+
 fn span(xs: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = xs.fold((f64::MAX, f64::MIN), |(a, b), x| (a.min(x), b.max(x)));
     if lo > hi {
@@ -47,13 +52,13 @@ pub fn profile(dir: &Path, frame: &[u16], boundary_px: f64, what: &str) -> PlotR
         &COLOURS[0],
     ))?
     .label("frame")
-    .legend(|(x, y)| PathElement::new([(x, y), (x + 16, y)], COLOURS[0]));
+    .legend(|(x, y)| key(x, y, COLOURS[0]));
     c.draw_series(LineSeries::new(
         [(boundary_px, 0.0), (boundary_px, top)],
         COLOURS[1].stroke_width(2),
     ))?
     .label(format!("boundary found at {boundary_px:.2} px"))
-    .legend(|(x, y)| PathElement::new([(x, y), (x + 16, y)], COLOURS[1]));
+    .legend(|(x, y)| key(x, y, COLOURS[1]));
     c.configure_series_labels()
         .border_style(BLACK)
         .background_style(WHITE)
@@ -93,7 +98,7 @@ fn lines_plot(
         let colour = COLOURS[i % COLOURS.len()];
         c.draw_series(LineSeries::new(pts.iter().copied(), colour.stroke_width(2)))?
             .label(name.as_str())
-            .legend(move |(x, y)| PathElement::new([(x, y), (x + 16, y)], colour));
+            .legend(move |(x, y)| key(x, y, colour));
         c.draw_series(pts.iter().map(|&p| Circle::new(p, 3, colour.filled())))?;
     }
     c.configure_series_labels()

@@ -1,6 +1,6 @@
 //! The printed report and the plots of one scenario.
 
-use crate::budget::{self, Budget, FACTORS};
+use crate::budget::{self, Budget, FACTORS, Factor};
 use crate::scenario::Scenario;
 use crate::sim::{Bench, Unit, description, sample_nd20, scale};
 use embedded_optics::refractometer::TradeScale;
@@ -65,7 +65,7 @@ pub fn run(sc: &Scenario, out: Option<&Path>) -> Result<(), Box<dyn std::error::
         indicatif::ProgressStyle::with_template("Monte Carlo {bar:40} {pos}/{len} units {elapsed}")
             .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
     );
-    let b = budget::budget(sc, &mut || bar.inc(1))?;
+    let b = budget::budget(sc, &|| bar.inc(1))?;
     bar.finish_and_clear();
     print_budget(sc, &b, unit);
 
@@ -156,6 +156,17 @@ pub fn print_budget(sc: &Scenario, b: &Budget, unit: &str) {
                 x,
                 l.bound_nd,
                 x / l.bound_nd
+            ),
+            _ => {}
+        }
+        match f {
+            Factor::Thermistor => println!(
+                "    (the simulated offset is the same at calibration and reading, so it partly \
+                 cancels; the firmware counts it in full)"
+            ),
+            Factor::CalibrationStandard => println!(
+                "    (a wrong standard shifts readings by (n - n_water)/(n_span - n_water) of its \
+                 error; the firmware counts it in full at every index)"
             ),
             _ => {}
         }

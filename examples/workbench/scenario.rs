@@ -305,6 +305,12 @@ impl Scenario {
             1.30,
             1.70,
         )?;
+        if (self.calibration.span_nd20 - 1.333).abs() < 0.02 {
+            return Err(bad(
+                "calibration.span_nd20",
+                "the span standard must be at least 0.02 from water (nD 1.333)",
+            ));
+        }
         within(
             "calibration.standard_uncertainty",
             self.calibration.standard_uncertainty,

@@ -200,6 +200,27 @@ impl Unit {
 /// Index at the LED wavelength `led_um` and temperature `t` of a sample whose
 /// nD at 20 °C is `nd20`, by bisection on the firmware's own models (f64).
 pub fn truth_at(model: &SampleModel<f64>, nd20: f64, led_um: f64, t: f64) -> Result<f64, Error> {
+    type Memo = std::collections::HashMap<[u64; 3], Result<f64, Error>>;
+    thread_local!(static MEMO: std::cell::RefCell<Memo> = Default::default());
+    // The models are fixed for a run; the memo is per thread and per model.
+    let key = [nd20.to_bits(), led_um.to_bits(), t.to_bits()];
+    let model_key = format!("{model:?}");
+    thread_local!(static MODEL: std::cell::RefCell<String> = Default::default());
+    MODEL.with(|m| {
+        if *m.borrow() != model_key {
+            MEMO.with(|c| c.borrow_mut().clear());
+            *m.borrow_mut() = model_key;
+        }
+    });
+    if let Some(r) = MEMO.with(|c| c.borrow().get(&key).copied()) {
+        return r;
+    }
+    let r = bisect(model, nd20, led_um, t);
+    MEMO.with(|c| c.borrow_mut().insert(key, r));
+    r
+}
+
+fn bisect(model: &SampleModel<f64>, nd20: f64, led_um: f64, t: f64) -> Result<f64, Error> {
     let f = |n: f64| -> Result<f64, Error> {
         Ok(model.to_reference(model.to_nd(n, led_um)?, t)? - nd20)
     };
