@@ -6,7 +6,10 @@
 //!
 //! Run: `cargo run --release --example workbench -- [scenario.toml] [--out DIR]
 //! [--trials N] [--no-plots]`. Without a file: the juice-line scenario.
+//! A file with `instrument = "autofocus"` simulates a camera module instead.
 
+#[path = "workbench/autofocus.rs"]
+mod autofocus;
 #[path = "workbench/budget.rs"]
 mod budget;
 #[path = "workbench/plots.rs"]
@@ -83,6 +86,27 @@ fn main() -> ExitCode {
             "built-in juice_line.toml".into(),
         ),
     };
+    // The `instrument` key picks the kind of scenario.
+    let kind = toml::from_str::<toml::Table>(&text).ok().and_then(|t| {
+        t.get("instrument")
+            .and_then(|v| v.as_str().map(String::from))
+    });
+    if kind.as_deref() == Some("autofocus") {
+        let fs = match autofocus::parse(&text, &origin) {
+            Ok(f) => f,
+            Err(e) => {
+                eprintln!("{e}");
+                return ExitCode::from(2);
+            }
+        };
+        return match autofocus::report(&fs, o.plots.then_some(o.out.as_path())) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => {
+                eprintln!("simulation stopped: {e}");
+                ExitCode::FAILURE
+            }
+        };
+    }
     let mut sc = match scenario::parse(&text, &origin) {
         Ok(s) => s,
         Err(e) => {

@@ -10,6 +10,9 @@ use serde::Deserialize;
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Scenario {
+    /// `"refractometer"` (the default when absent).
+    #[serde(default)]
+    pub instrument: Option<String>,
     /// One line saying what is simulated (printed at the top of the report).
     pub title: String,
     /// The measuring prism.
@@ -209,6 +212,12 @@ pub fn parse(text: &str, origin: &str) -> Result<Scenario, ScenarioError> {
 impl Scenario {
     /// Range checks the parser cannot do; each names its field.
     fn check(&self) -> Result<(), ScenarioError> {
+        if let Some(kind) = self.instrument.as_deref().filter(|k| *k != "refractometer") {
+            return Err(bad(
+                "instrument",
+                &format!("\"{kind}\" is not one of \"refractometer\", \"autofocus\""),
+            ));
+        }
         within("prism.glass_nd", self.prism.glass_nd, 1.4, 2.2)?;
         within("prism.glass_vd", self.prism.glass_vd, 15.0, 100.0)?;
         within("prism.dn_dt_ppm", self.prism.dn_dt_ppm, -50.0, 50.0)?;
