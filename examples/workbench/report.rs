@@ -19,7 +19,12 @@ pub fn run(sc: &Scenario, out: Option<&Path>) -> Result<(), Box<dyn std::error::
         noise: sc.study.tolerances.pixel_noise,
         ..Unit::NOMINAL
     };
-    let mut bench = Bench::calibrated(sc, noisy, &d)?;
+    let mut bench = Bench::calibrated(sc, noisy, &d).map_err(|e| {
+        format!(
+            "the firmware refuses this design or its calibration ({e}); \
+             check the prism, sensor, optics, led and calibration fields"
+        )
+    })?;
     println!(
         "\nReadings of a unit as designed (pixel noise on), calibrated at {} °C:",
         sc.calibration.temperature_c
@@ -144,27 +149,33 @@ pub fn print_budget(sc: &Scenario, b: &Budget, unit: &str) {
         b.total.firmware_95 / b.total.bound_nd.max(f64::MIN_POSITIVE)
     );
     for ((l, fw), f) in b.alone.iter().zip(&b.firmware_terms).zip(FACTORS) {
-        match fw {
-            None if l.bound_nd > 0.1 * b.total.bound_nd => println!(
-                "  {}: not in the firmware's uncertainty, yet {:.1e} nD at 95 %.",
-                f.name(),
-                l.bound_nd
-            ),
-            Some(x) if l.bound_nd > 0.0 && !(0.67..=1.5).contains(&(x / l.bound_nd)) => println!(
-                "  {}: firmware says {:.1e}, simulation {:.1e} nD at 95 % (factor {:.2}).",
-                f.name(),
-                x,
-                l.bound_nd,
-                x / l.bound_nd
-            ),
-            _ => {}
-        }
+        let differs = match fw {
+            None if l.bound_nd > 0.1 * b.total.bound_nd => {
+                println!(
+                    "  {}: not in the firmware's uncertainty, yet {:.1e} nD at 95 %.",
+                    f.name(),
+                    l.bound_nd
+                );
+                false
+            }
+            Some(x) if l.bound_nd > 0.0 && !(0.67..=1.5).contains(&(x / l.bound_nd)) => {
+                println!(
+                    "  {}: firmware says {:.1e}, simulation {:.1e} nD at 95 % (factor {:.2}).",
+                    f.name(),
+                    x,
+                    l.bound_nd,
+                    x / l.bound_nd
+                );
+                true
+            }
+            _ => false,
+        };
         match f {
-            Factor::Thermistor => println!(
+            Factor::Thermistor if differs => println!(
                 "    (the simulated offset is the same at calibration and reading, so it partly \
                  cancels; the firmware counts it in full)"
             ),
-            Factor::CalibrationStandard => println!(
+            Factor::CalibrationStandard if differs => println!(
                 "    (a wrong standard shifts readings by (n - n_water)/(n_span - n_water) of its \
                  error; the firmware counts it in full at every index)"
             ),
