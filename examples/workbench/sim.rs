@@ -411,8 +411,8 @@ impl<'a> Bench<'a> {
             &mut fixed,
             &mut last,
         )?;
-        f64_chain.span_with_standard(&a, certified, &model64, &model64)?;
-        fixed.span_with_standard(&b, I32F32::from_f64(certified)?, &model_fx, &model_fx)?;
+        f64_chain.add_standard(&a, certified, &model64, &model64)?;
+        fixed.add_standard(&b, I32F32::from_f64(certified)?, &model_fx, &model_fx)?;
         world.scene.led_centre_nm += drift;
         Ok(Bench {
             world,
