@@ -226,6 +226,14 @@ pub fn compensation_brix<S: Tabled>(i: usize) {
     black_box(brix.ok());
 }
 
+/// nD at 20 °C → %Brix alone (the ICUMSA table's inversion), the part of
+/// [`compensation_brix`] that runs twice there and six times in a reading.
+pub fn brix_from_nd20<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let nd20 = black_box(S::from_ratio(13_500 + (i as i32 % 17) * 40, 10_000).unwrap_or(S::ONE));
+    black_box(SucroseBrix.value_at(nd20).ok());
+}
+
 /// Base of [`frame_to_brix`]: builds the instrument.
 pub fn frame_to_brix_base<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
@@ -410,6 +418,12 @@ macro_rules! per_type {
                 run: compensation_brix::<$t>,
             },
             Item {
+                name: concat!("chain: nD20 -> %Brix alone (ICUMSA table inversion)/", $n),
+                units: 1,
+                base: None,
+                run: brix_from_nd20::<$t>,
+            },
+            Item {
                 name: concat!("chain: frame -> %Brix reading (Instrument::measure)/", $n),
                 units: 1,
                 base: Some(frame_to_brix_base::<$t>),
@@ -438,7 +452,7 @@ macro_rules! per_type {
 }
 
 /// Items per number type.
-pub const PER_TYPE: usize = 13;
+pub const PER_TYPE: usize = 14;
 
 /// Items after the per-type ones: the frame floor and the `libm` baselines.
 const OTHERS: usize = 8;
