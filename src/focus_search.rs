@@ -763,9 +763,12 @@ impl<S: Scalar> FocusSearch<S> {
                 let v = (i64::from(q) - 32_768) * i64::from(spacing);
                 let d = (v + v.signum() * 32_768) / 65_536;
                 let code = i64::from(c.code) + d;
+                // max/min, not clamp: same result for the checked config
+                // (min < max), and no panic path in firmware images.
                 i32::try_from(code)
                     .unwrap_or(c.code)
-                    .clamp(self.config.code_min, self.config.code_max)
+                    .max(self.config.code_min)
+                    .min(self.config.code_max)
             }
             Err(_) => c.code,
         }

@@ -79,11 +79,16 @@ impl<S: Scalar> Geometry<S> {
         let f = check_described(d.focal_length_mm, 1.0, 500.0, Quantity::Length)?;
         let axis = check_described(d.axis_offset_px, 0.0, 4096.0, Quantity::Length)?;
         let apex = check_described(d.apex_angle_deg, 20.0, 85.0, Quantity::Angle)?.to_radians();
+        // sin A and cos A in the number type: a fixed-point firmware links no
+        // soft-float trigonometry for its one-time set-up.
+        let apex = S::from_f64(apex)?;
         Ok(Geometry {
-            axis: libm::round(axis * f64::from(SUBPIXEL)) as i32,
+            // axis ≥ 0: adding ½ and truncating rounds like `round`, and folds
+            // to a constant for a `const` description (no soft float at run time).
+            axis: (axis * f64::from(SUBPIXEL) + 0.5) as i32,
             step: S::from_f64(f64::from(POSITION_SCALE) * pitch * 1e-3 / f)?,
-            sin_apex: S::from_f64(libm::sin(apex))?,
-            cos_apex: S::from_f64(libm::cos(apex))?,
+            sin_apex: apex.sin()?,
+            cos_apex: apex.cos()?,
             reversed: d.reversed,
         })
     }

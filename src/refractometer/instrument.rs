@@ -508,7 +508,9 @@ where
         if let Some(slot) = self.history.get_mut(self.history_next) {
             *slot = (nd20, t);
         }
-        self.history_next = (self.history_next + 1) % self.settle_len;
+        // `settle_len` is 2..=SETTLE_MAX (checked in `new`); `max(1)` lets the
+        // optimiser see that, so firmware links no division-by-zero panic.
+        self.history_next = (self.history_next + 1) % self.settle_len.max(1);
         self.history_len = (self.history_len + 1).min(self.settle_len);
         if self.history_len < self.settle_len {
             return Ok(false);

@@ -269,7 +269,12 @@ pub(crate) const fn ln(v: i128) -> Option<i128> {
         e += 1;
     }
     // ln m = 2 atanh(t), t = (m - 1) / (m + 1), |t| < 0.172.
-    let t = ((m - ONE_Q61) << Q) / (m + ONE_Q61);
+    // m + 1 > 0 here; the checked form lets the optimiser drop the panic path
+    // (Cortex-M0 images otherwise link a division-by-zero panic).
+    let t = match ((m - ONE_Q61) << Q).checked_div(m + ONE_Q61) {
+        Some(t) => t,
+        None => return None,
+    };
     let t2 = mul_q61(t, t);
     let mut term = t;
     let mut sum = t;

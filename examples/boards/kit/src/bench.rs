@@ -3,7 +3,7 @@
 //! `.ci/bench-report`:
 //!
 //! `cal|<nop instructions>|<ticks of the nop block>|<ticks of an empty call>|<calls>`
-//! `item|<name>|<units>|<calls>|<ticks>|<stack bytes>`
+//! `item|<name>|<units>|<calls>|<ticks>|<stack bytes>|<ticks of the base, if any>`
 
 use crate::items::ITEMS;
 use crate::{ROWS, meter};
@@ -35,6 +35,18 @@ pub fn run(syst: &mut cortex_m::peripheral::SYST) {
     for item in ITEMS.iter() {
         let t = meter::ticks(item.run, CALLS);
         let s = meter::stack_bytes(item.run, ROWS);
-        hprintln!("item|{}|{}|{}|{}|{}", item.name, item.units, CALLS, t, s);
+        let b = item.base.map(|b| meter::ticks(b, CALLS));
+        match b {
+            Some(b) => hprintln!(
+                "item|{}|{}|{}|{}|{}|{}",
+                item.name,
+                item.units,
+                CALLS,
+                t,
+                s,
+                b
+            ),
+            None => hprintln!("item|{}|{}|{}|{}|{}|", item.name, item.units, CALLS, t, s),
+        }
     }
 }

@@ -14,12 +14,29 @@
 //! - `focus_metric_per_pixel::<S>`: focus metric on a frame (`units: pixels`);
 //! - `contrast_search_step::<S>`: one step of the contrast search.
 
-use crate::{Tabled, row};
+use crate::chains::{self, LAYOUT, MOTION, Refractometer};
+use crate::{Tabled, chain_frames, chain_temperatures, row};
+use core::convert::Infallible;
 use core::hint::black_box;
+use embedded_hal::i2c::{ErrorType, I2c, Operation};
+use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+use embedded_optics::actuator_driver::FocusActuatorDriver;
+use embedded_optics::focus::SubjectDistance;
+use embedded_optics::focus_metric::{Roi, tenengrad};
+use embedded_optics::focus_search::{FocusSearch, Step};
+use embedded_optics::focus_sim::LensModel;
 use embedded_optics::fresnel::{reflectance, reflectance_from_cosine};
+use embedded_optics::lit;
+use embedded_optics::medium::Medium;
 use embedded_optics::refraction::{
     critical_angle, sample_index_from_critical_angle, sample_index_from_critical_sine,
 };
+use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection, find_boundary};
+use embedded_optics::refractometer::compensation::SucroseCompensation;
+use embedded_optics::refractometer::geometry::Geometry;
+use embedded_optics::refractometer::scales::SucroseBrix;
+use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
+use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use fixed::types::{I8F24, I32F32};
 
 /// One measured item.
@@ -31,6 +48,9 @@ pub struct Item {
     pub units: u32,
     /// Does the work once on input row `i`.
     pub run: fn(usize),
+    /// The same call without the measured work (set-up only), subtracted in
+    /// the report instead of the empty loop; `None`: the empty loop.
+    pub base: Option<fn(usize)>,
 }
 
 /// Loop and call overhead: reads a row and does nothing. The report subtracts it
@@ -125,80 +145,372 @@ pub fn baseline_pixel_to_index(i: usize) {
     black_box(r.n_prism * libm::sinf(critical));
 }
 
+/// Stored frame and its temperature for call `i` (a sample frame, not water).
+fn chain_input<S: Tabled>(i: usize) -> (&'static [u16], S) {
+    let k = 1 + i % (chains::FRAMES - 1);
+    let f = chain_frames();
+    let t = chain_temperatures::<S>();
+    (
+        f.get(k).copied().unwrap_or(&[]),
+        t.get(k).copied().unwrap_or(S::ZERO),
+    )
+}
+
+/// Boundary finder alone on a stored 1024-pixel frame (`units: 1024`).
+pub fn boundary_per_pixel(i: usize) {
+    let (f, _) = chain_input::<f32>(i);
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    black_box(find_boundary(f, &cfg).ok());
+}
+
+/// Boundary finder on 512 of the frame's pixels (96..608, the edges of all
+/// stored samples inside, `units: 512`): with [`boundary_per_pixel`], the
+/// report splits the finder's cost into per pixel (the slope) and per frame.
+pub fn boundary_half_frame(i: usize) {
+    let (f, _) = chain_input::<f32>(i);
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    black_box(find_boundary(f.get(96..608).unwrap_or(&[]), &cfg).ok());
+}
+
+/// Set-up of the conversion: geometry and prism glass.
+fn conversion_setup<S: Tabled>() -> Option<(Geometry<S>, embedded_optics::media::glass::Glass<S>)> {
+    Some((
+        Geometry::new(&chains::GEOMETRY).ok()?,
+        chains::prism().ok()?,
+    ))
+}
+
+/// Base of [`boundary_to_nd`]: the set-up only.
+pub fn boundary_to_nd_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    black_box(conversion_setup::<S>());
+}
+
+/// Boundary position → nD at the sample temperature: prism index at the LED
+/// and temperature, geometry (Snell at the exit face), water-like dispersion
+/// to 589.3 nm. Positions spread over the array.
+pub fn boundary_to_nd<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some((g, prism)) = conversion_setup::<S>() else {
+        return;
+    };
+    let position = black_box(12_000_000 + (i as i32 % 17) * 1_000_000);
+    let t = black_box(lit!(S, 16.0));
+    let led = lit!(S, 0.590);
+    let nd = prism
+        .index(led, t)
+        .and_then(|np| g.sample_index(position, np))
+        .and_then(|n| WaterLikeDispersion.to_nd(n, led));
+    black_box(nd.ok());
+}
+
+/// Geometry step alone (given the prism index): the like-for-like of the
+/// `libm` baseline `pixel -> nD`.
+pub fn geometry_only<S: Tabled>(i: usize) {
+    let r = row::<S>(i);
+    let Some((g, _)) = conversion_setup::<S>() else {
+        return;
+    };
+    let position = black_box(12_000_000 + (i as i32 % 17) * 1_000_000);
+    black_box(g.sample_index(position, r.n_prism).ok());
+}
+
+/// nD at temperature → nD at 20 °C (OIV Table I) → %Brix (ICUMSA).
+pub fn compensation_brix<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let nd = black_box(lit!(S, 1.3700));
+    let t = black_box(S::from_i32(8 + (i as i32 % 12)).unwrap_or(S::ZERO));
+    let brix = SucroseCompensation::oiv()
+        .to_reference(nd, t)
+        .and_then(|nd20| SucroseBrix.value_at(nd20));
+    black_box(brix.ok());
+}
+
+/// nD at 20 °C → %Brix alone (the ICUMSA table's inversion), the part of
+/// [`compensation_brix`] that runs twice there and six times in a reading.
+pub fn brix_from_nd20<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let nd20 = black_box(S::from_ratio(13_500 + (i as i32 % 17) * 40, 10_000).unwrap_or(S::ONE));
+    black_box(SucroseBrix.value_at(nd20).ok());
+}
+
+/// Base of [`frame_to_brix`]: builds the instrument.
+pub fn frame_to_brix_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    black_box(chains::refractometer::<S>().ok());
+}
+
+/// The whole reading: stored frame + temperature → boundary → nD → nD20 →
+/// %Brix, with the uncertainty and settling of `Instrument::measure`.
+pub fn frame_to_brix<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Ok(mut inst): Result<Refractometer<S>, _> = chains::refractometer::<S>() else {
+        return;
+    };
+    let (f, t) = chain_input::<S>(i);
+    black_box(inst.measure(f, t).ok());
+}
+
+/// A phone module's factory table (invented): infinity at 300, 50 cm at 372,
+/// 10 cm at 700 (4 mm lens).
+fn actuator_model<S: Tabled>() -> Option<ActuatorModel<S>> {
+    let points = [
+        CalibrationPoint {
+            code: 300,
+            subject: SubjectDistance::Infinity,
+        },
+        CalibrationPoint {
+            code: 372,
+            subject: SubjectDistance::Finite(lit!(S, 0.5)),
+        },
+        CalibrationPoint {
+            code: 700,
+            subject: SubjectDistance::Finite(lit!(S, 0.1)),
+        },
+    ];
+    ActuatorModel::from_table(lit!(S, 0.004), &points).ok()
+}
+
+/// Base of [`distance_to_code`]: builds the model.
+pub fn distance_to_code_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    black_box(actuator_model::<S>());
+}
+
+/// Subject distance (0.12–1.72 m) → actuator code.
+pub fn distance_to_code<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some(m) = actuator_model::<S>() else {
+        return;
+    };
+    let d = S::from_ratio(12 + (i as i32 % 17) * 10, 100).unwrap_or(S::ONE);
+    let nominal = OperatingConditions::nominal();
+    black_box(
+        m.code_for_distance(SubjectDistance::Finite(black_box(d)), &nominal)
+            .ok(),
+    );
+}
+
+/// Focus metric (Tenengrad, 3 × 3 Sobel) on the 1024 pixels of a stored
+/// frame seen as 32 × 32 (`units: 1024`).
+pub fn focus_metric_per_pixel(i: usize) {
+    let (f, _) = chain_input::<f32>(i);
+    black_box(Roi::whole(f, 32, 32).and_then(|r| tenengrad(&r, 0)).ok());
+}
+
+/// A bus that takes every write and does nothing (firmware cost of the driver
+/// without a simulated module behind it).
+struct NullBus;
+impl ErrorType for NullBus {
+    type Error = Infallible;
+}
+impl I2c for NullBus {
+    fn transaction(&mut self, _: u8, ops: &mut [Operation<'_>]) -> Result<(), Infallible> {
+        black_box(ops);
+        Ok(())
+    }
+}
+
+/// Base of [`search_steps`]: search, driver and the first move.
+fn search_setup<S: Tabled>() -> Option<(
+    FocusSearch<S>,
+    FocusActuatorDriver<NullBus, chains::CountingDelay>,
+    Step,
+)> {
+    let lens = LensModel::<S>::phone_module();
+    let mut search = FocusSearch::new(chains::focus_config(&lens).ok()?).ok()?;
+    let driver =
+        FocusActuatorDriver::new(NullBus, chains::CountingDelay { ns: 0 }, LAYOUT, MOTION).ok()?;
+    let step = search.start();
+    Some((search, driver, step))
+}
+
+/// Base of [`search_steps`].
+pub fn search_steps_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    black_box(search_setup::<S>().map(|(_, _, s)| s));
+}
+
+/// A whole contrast search replayed from the metrics the host's run saw: per
+/// step, move the actuator over I²C (stepped, settled) and feed the metric
+/// (`units`: the run's steps).
+pub fn search_steps<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some((mut search, mut driver, mut step)) = search_setup::<S>() else {
+        return;
+    };
+    for &m in S::focus_metrics() {
+        if let Step::Move(code) = step {
+            black_box(driver.move_to(u16::try_from(code).unwrap_or(0)).is_ok());
+        }
+        step = search.feed(black_box(m));
+    }
+    black_box(step);
+}
+
+/// The autofocus chain against the simulated module (search, driver, bus and
+/// the module's model): for its stack and flash.
+pub fn focus_closed_loop<S: Tabled>(i: usize) {
+    let v = S::focus_vergences();
+    let v = S::from_raw(v[i % v.len()]);
+    let mut metrics = [0; chains::FOCUS_FRAMES_MAX];
+    black_box(chains::focus_run(black_box(v), 11, &mut metrics).ok());
+}
+
 macro_rules! per_type {
-    ($t:ty, $n:literal) => {
+    ($t:ty, $n:literal, $steps:expr) => {
         [
             Item {
                 name: concat!("empty loop/", $n),
                 units: 1,
+                base: None,
                 run: empty::<$t>,
             },
             Item {
                 name: concat!("critical sine -> nD/", $n),
                 units: 1,
+                base: None,
                 run: index_from_sine::<$t>,
             },
             Item {
                 name: concat!("critical angle -> nD/", $n),
                 units: 1,
+                base: None,
                 run: index_from_angle::<$t>,
             },
             Item {
                 name: concat!("indices -> critical angle/", $n),
                 units: 1,
+                base: None,
                 run: angle_from_indices::<$t>,
             },
             Item {
                 name: concat!("Fresnel from cosine/", $n),
                 units: 1,
+                base: None,
                 run: fresnel_from_cosine::<$t>,
             },
             Item {
                 name: concat!("Fresnel from angle/", $n),
                 units: 1,
+                base: None,
                 run: fresnel_from_angle::<$t>,
+            },
+            Item {
+                name: concat!("chain: geometry only, position -> n/", $n),
+                units: 1,
+                base: Some(boundary_to_nd_base::<$t>),
+                run: geometry_only::<$t>,
+            },
+            Item {
+                name: concat!(
+                    "chain: boundary -> nD (prism at T, geometry, dispersion)/",
+                    $n
+                ),
+                units: 1,
+                base: Some(boundary_to_nd_base::<$t>),
+                run: boundary_to_nd::<$t>,
+            },
+            Item {
+                name: concat!("chain: compensation + %Brix/", $n),
+                units: 1,
+                base: None,
+                run: compensation_brix::<$t>,
+            },
+            Item {
+                name: concat!("chain: nD20 -> %Brix alone (ICUMSA table inversion)/", $n),
+                units: 1,
+                base: None,
+                run: brix_from_nd20::<$t>,
+            },
+            Item {
+                name: concat!("chain: frame -> %Brix reading (Instrument::measure)/", $n),
+                units: 1,
+                base: Some(frame_to_brix_base::<$t>),
+                run: frame_to_brix::<$t>,
+            },
+            Item {
+                name: concat!("chain: subject distance -> actuator code/", $n),
+                units: 1,
+                base: Some(distance_to_code_base::<$t>),
+                run: distance_to_code::<$t>,
+            },
+            Item {
+                name: concat!("chain: contrast-search step (feed + I2C move)/", $n),
+                units: $steps as u32,
+                base: Some(search_steps_base::<$t>),
+                run: search_steps::<$t>,
+            },
+            Item {
+                name: concat!("chain: autofocus closed loop with simulated module/", $n),
+                units: 1,
+                base: None,
+                run: focus_closed_loop::<$t>,
             },
         ]
     };
 }
 
 /// Items per number type.
-pub const PER_TYPE: usize = 6;
+pub const PER_TYPE: usize = 14;
 
 /// Items after the per-type ones: the frame floor and the `libm` baselines.
-const OTHERS: usize = 5;
+const OTHERS: usize = 8;
 
 /// Everything measured: the crate's routines in three number types, the frame
 /// floor, then the `libm` f32 baselines. The order is the flash probes' index.
 pub const ITEMS: [Item; 3 * PER_TYPE + OTHERS] = {
-    let a = per_type!(I8F24, "I8F24");
-    let b = per_type!(I32F32, "I32F32");
-    let c = per_type!(f32, "f32");
+    let a = per_type!(I8F24, "I8F24", crate::table::FOCUS_STEPS_I8F24);
+    let b = per_type!(I32F32, "I32F32", crate::table::FOCUS_STEPS_I32F32);
+    let c = per_type!(f32, "f32", crate::table::FOCUS_STEPS_F32);
     let base = [
         Item {
             name: "frame pass: read 1024 pixels/u16",
             units: 1024,
+            base: None,
             run: frame_pass,
         },
         Item {
             name: "baseline sin: angle -> nD/libm f32",
             units: 1,
+            base: None,
             run: baseline_index_from_angle,
         },
         Item {
             name: "baseline asin: indices -> angle/libm f32",
             units: 1,
+            base: None,
             run: baseline_angle_from_indices,
         },
         Item {
             name: "baseline Fresnel (asin, sin, tan)/libm f32",
             units: 1,
+            base: None,
             run: baseline_fresnel,
         },
         Item {
             name: "baseline pixel -> nD (atan, asin, sin)/libm f32",
             units: 1,
+            base: None,
             run: baseline_pixel_to_index,
+        },
+        Item {
+            name: "chain: boundary finder per pixel/u16",
+            units: 1024,
+            base: None,
+            run: boundary_per_pixel,
+        },
+        Item {
+            name: "chain: boundary finder on 512 pixels, per pixel/u16",
+            units: 512,
+            base: None,
+            run: boundary_half_frame,
+        },
+        Item {
+            name: "chain: focus metric (Tenengrad) per pixel/u16",
+            units: 1024,
+            base: None,
+            run: focus_metric_per_pixel,
         },
     ];
     let mut out = [base[0]; 3 * PER_TYPE + OTHERS];

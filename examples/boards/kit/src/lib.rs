@@ -5,12 +5,14 @@
 #![no_std]
 
 pub mod bench;
+pub mod chains;
 pub mod items;
 pub mod meter;
 #[cfg(feature = "probe")]
 pub mod probe;
 pub mod rows;
 
+use chains::{FRAMES, SUBJECTS};
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
 use rows::{OUTPUTS, Row};
@@ -42,10 +44,43 @@ pub trait Tabled: Scalar {
     fn deviation(self, expected: Self::Expected) -> u32;
     /// Largest [`deviation`](Tabled::deviation) allowed.
     const BUDGET: u32;
+    /// Largest deviation of a %Brix value (what `BUDGET` in nD becomes).
+    const BRIX_BUDGET: u32;
+    /// Sample temperatures of the stored frames.
+    fn chain_temperatures() -> &'static [Self::Bits; FRAMES];
+    /// Expected refractometer outputs (see [`chains::refractometer_run`]).
+    fn chain_expected() -> &'static [Result<(i32, Self::Expected, Self::Expected), Error>; FRAMES];
+    /// Subject vergences of the autofocus runs.
+    fn focus_vergences() -> &'static [Self::Bits; SUBJECTS.len()];
+    /// Expected autofocus outcomes: the same type on the host (integers).
+    fn focus_expected() -> &'static [chains::FocusOut; SUBJECTS.len()];
+    /// Metrics the host's first autofocus run fed to the search.
+    fn focus_metrics() -> &'static [u64];
+}
+
+/// The chain tables of one type, by name.
+macro_rules! chain_tables {
+    ($bits:ty, $exp:ty, $t:ident, $c:ident, $v:ident, $f:ident, $m:ident) => {
+        fn chain_temperatures() -> &'static [$bits; FRAMES] {
+            &table::$t
+        }
+        fn chain_expected() -> &'static [Result<(i32, $exp, $exp), Error>; FRAMES] {
+            &table::$c
+        }
+        fn focus_vergences() -> &'static [$bits; SUBJECTS.len()] {
+            &table::$v
+        }
+        fn focus_expected() -> &'static [chains::FocusOut; SUBJECTS.len()] {
+            &table::$f
+        }
+        fn focus_metrics() -> &'static [u64] {
+            &table::$m
+        }
+    };
 }
 
 macro_rules! tabled_fixed {
-    ($t:ty, $bits:ty, $inp:ident, $out:ident) => {
+    ($t:ty, $bits:ty, $inp:ident, $out:ident, [$($c:ident),*]) => {
         /// Fixed point: compared with the same type on the host, bit for bit.
         impl Tabled for $t {
             type Bits = $bits;
@@ -63,11 +98,37 @@ macro_rules! tabled_fixed {
                 u32::try_from(self.to_bits().abs_diff(expected)).unwrap_or(u32::MAX)
             }
             const BUDGET: u32 = 0;
+            const BRIX_BUDGET: u32 = 0;
+            chain_tables!($bits, $bits, $($c),*);
         }
     };
 }
-tabled_fixed!(I8F24, i32, IN_I8F24, OUT_I8F24);
-tabled_fixed!(I32F32, i64, IN_I32F32, OUT_I32F32);
+tabled_fixed!(
+    I8F24,
+    i32,
+    IN_I8F24,
+    OUT_I8F24,
+    [
+        CHAIN_T_I8F24,
+        CHAIN_OUT_I8F24,
+        FOCUS_V_I8F24,
+        FOCUS_OUT_I8F24,
+        FOCUS_METRICS_I8F24
+    ]
+);
+tabled_fixed!(
+    I32F32,
+    i64,
+    IN_I32F32,
+    OUT_I32F32,
+    [
+        CHAIN_T_I32F32,
+        CHAIN_OUT_I32F32,
+        FOCUS_V_I32F32,
+        FOCUS_OUT_I32F32,
+        FOCUS_METRICS_I32F32
+    ]
+);
 
 /// f32: compared with `f64` on the host; budget 2e-6 absolute.
 impl Tabled for f32 {
@@ -88,6 +149,17 @@ impl Tabled for f32 {
         if d.is_nan() { u32::MAX } else { d as u32 }
     }
     const BUDGET: u32 = 2_000;
+    /// 1.5e-3 %Brix: 2e-6 nD times about 670 %Brix per unit nD (0–10 %Brix).
+    const BRIX_BUDGET: u32 = 1_500_000;
+    chain_tables!(
+        u32,
+        f64,
+        CHAIN_T_F32,
+        CHAIN_OUT_F64,
+        FOCUS_V_F32,
+        FOCUS_OUT_F32,
+        FOCUS_METRICS_F32
+    );
 }
 
 /// Input row `i` (modulo the table length). With the `probe` feature, one
@@ -170,6 +242,65 @@ pub fn check<S: Tabled>() -> Checked {
                 c.failure = Some((i as u16, j as u8));
             }
         }
+    }
+    c
+}
+
+/// The stored frames (with the `probe` feature: empty frames, see [`frame`]).
+#[inline(always)]
+pub fn chain_frames() -> [&'static [u16]; FRAMES] {
+    #[cfg(not(feature = "probe"))]
+    let f: [&'static [u16]; FRAMES] = core::array::from_fn(|k| &table::CHAIN_FRAMES[k][..]);
+    #[cfg(feature = "probe")]
+    let f: [&'static [u16]; FRAMES] = [&[]; FRAMES];
+    core::hint::black_box(f)
+}
+
+/// Sample temperatures of the stored frames in type `S`.
+#[inline(always)]
+pub fn chain_temperatures<S: Tabled>() -> [S; FRAMES] {
+    core::hint::black_box(S::chain_temperatures().map(S::from_raw))
+}
+
+/// Runs both chains in type `S` (refractometer on the stored frames, autofocus
+/// on the simulated module) and compares with the host: nD and offsets within
+/// `S::BUDGET`, %Brix within `S::BRIX_BUDGET`, positions and every autofocus
+/// figure exactly, errors equal. `failure` = (run, 0) for the refractometer's
+/// output `run`, (run, 1) for autofocus run `run`.
+#[cfg(not(feature = "probe"))]
+pub fn check_chains<S: Tabled>() -> Checked {
+    let mut c = Checked {
+        compared: 0,
+        worst: 0,
+        failure: None,
+    };
+    let fail = |c: &mut Checked, ok: bool, at: (u16, u8)| {
+        c.compared += 1;
+        if !ok && c.failure.is_none() {
+            c.failure = Some(at);
+        }
+    };
+    let got = chains::refractometer_run(&chain_frames(), &chain_temperatures::<S>());
+    for (k, (g, e)) in got.iter().zip(S::chain_expected()).enumerate() {
+        let ok = match (g, e) {
+            (Ok((gp, gn, gb)), Ok((ep, en, eb))) => {
+                let (dn, db) = (gn.deviation(*en), gb.deviation(*eb));
+                c.worst = c.worst.max(dn);
+                gp == ep && dn <= S::BUDGET && db <= S::BRIX_BUDGET
+            }
+            (Err(a), Err(b)) => a == b,
+            _ => false,
+        };
+        fail(&mut c, ok, (k as u16, 0));
+    }
+    for (k, (v, e)) in S::focus_vergences()
+        .iter()
+        .zip(S::focus_expected())
+        .enumerate()
+    {
+        let mut metrics = [0; chains::FOCUS_FRAMES_MAX];
+        let g = chains::focus_run(S::from_raw(*v), 11 + k as u64, &mut metrics);
+        fail(&mut c, g == *e, (k as u16, 1));
     }
     c
 }

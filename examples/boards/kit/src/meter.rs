@@ -19,17 +19,19 @@ pub fn start(syst: &mut SYST) {
     syst.enable_counter();
 }
 
-/// SysTick ticks spent by `calls` calls of `run(i)` for i = 0..calls. Must stay
-/// below 2^24 ticks (one wrap at most); callers keep `calls` small.
+/// SysTick ticks spent by `calls` calls of `run(i)` for i = 0..calls, read
+/// around each call (one call must stay below 2^24 ticks, one wrap at most).
 #[inline(never)]
-pub fn ticks(run: fn(usize), calls: usize) -> u32 {
+pub fn ticks(run: fn(usize), calls: usize) -> u64 {
     let run = black_box(run);
-    let start = SYST::get_current();
+    let mut sum = 0u64;
     for i in 0..calls {
+        let start = SYST::get_current();
         run(black_box(i));
+        let end = SYST::get_current();
+        sum += u64::from(start.wrapping_sub(end) & RELOAD);
     }
-    let end = SYST::get_current();
-    start.wrapping_sub(end) & RELOAD
+    sum
 }
 
 /// Exactly 1000 `nop`s: the calibration block.

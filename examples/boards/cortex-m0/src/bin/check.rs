@@ -5,7 +5,7 @@
 #![no_std]
 #![no_main]
 
-use board_kit::{Tabled, check, rows::OUTPUT_NAMES};
+use board_kit::{Tabled, check, check_chains, rows::OUTPUT_NAMES};
 use core::cell::UnsafeCell;
 use cortex_m_rt::entry;
 use cortex_m_semihosting::hio;
@@ -34,6 +34,35 @@ fn check_type<S: Tabled>(name: &str) -> bool {
                 name,
                 row,
                 what
+            );
+            false
+        }
+    }
+}
+
+/// Runs both chains in one type and logs the outcome; `true` when bit-exact.
+fn check_chains_type<S: Tabled>(name: &str) -> bool {
+    let c = check_chains::<S>();
+    match c.failure {
+        None => {
+            defmt::info!(
+                "{=str} chains: {=u32} results bit-exact with the host (refractometer, autofocus)",
+                name,
+                c.compared
+            );
+            true
+        }
+        Some((run, chain)) => {
+            let what = if chain == 0 {
+                "refractometer output"
+            } else {
+                "autofocus run"
+            };
+            defmt::error!(
+                "{=str} chains: {=str} {=u16} differs from the host",
+                name,
+                what,
+                run
             );
             false
         }
@@ -88,6 +117,9 @@ unsafe impl defmt::Logger for SemihostingLogger {
 
 #[entry]
 fn main() -> ! {
-    let ok = check_type::<I8F24>("I8F24") & check_type::<I32F32>("I32F32");
+    let ok = check_type::<I8F24>("I8F24")
+        & check_type::<I32F32>("I32F32")
+        & check_chains_type::<I32F32>("I32F32")
+        & check_chains_type::<I8F24>("I8F24");
     board_kit::finish(ok)
 }
