@@ -20,6 +20,7 @@ use embedded_optics::fresnel::{reflectance, reflectance_from_cosine};
 use embedded_optics::refraction::{
     critical_angle, sample_index_from_critical_angle, sample_index_from_critical_sine,
 };
+use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection, find_boundary};
 use fixed::types::{I8F24, I32F32};
 
 /// One measured item.
@@ -75,6 +76,18 @@ pub fn fresnel_from_angle<S: Tabled>(i: usize) {
 pub fn frame_pass(_: usize) {
     let sum: u32 = crate::frame().iter().map(|&p| u32::from(p)).sum();
     black_box(sum);
+}
+
+/// Boundary finder on the middle `N` pixels of the synthetic frame (the edge
+/// stays in the middle). Measured at two lengths to split the cost: the block
+/// pass per pixel is `(T[1024] − T[512]) / 512`, the fixed part (refinement
+/// around the boundary, plateaus, checks) is `2·T[512] − T[1024]`.
+pub fn boundary_frame<const N: usize>(_: usize) {
+    let f = crate::frame();
+    let start = f.len().saturating_sub(N) / 2;
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    let pixels = f.get(start..start + N).unwrap_or(f);
+    black_box(find_boundary(pixels, &cfg).ok());
 }
 
 /// Baseline, written the straightforward way with `libm` f32 trigonometry and no
@@ -165,8 +178,9 @@ macro_rules! per_type {
 /// Items per number type.
 pub const PER_TYPE: usize = 6;
 
-/// Items after the per-type ones: the frame floor and the `libm` baselines.
-const OTHERS: usize = 5;
+/// Items after the per-type ones: the frame floor, the boundary finder and the
+/// `libm` baselines.
+const OTHERS: usize = 7;
 
 /// Everything measured: the crate's routines in three number types, the frame
 /// floor, then the `libm` f32 baselines. The order is the flash probes' index.
@@ -179,6 +193,16 @@ pub const ITEMS: [Item; 3 * PER_TYPE + OTHERS] = {
             name: "frame pass: read 1024 pixels/u16",
             units: 1024,
             run: frame_pass,
+        },
+        Item {
+            name: "boundary finder, 1024 px/u16",
+            units: 1,
+            run: boundary_frame::<1024>,
+        },
+        Item {
+            name: "boundary finder, 512 px/u16",
+            units: 1,
+            run: boundary_frame::<512>,
         },
         Item {
             name: "baseline sin: angle -> nD/libm f32",
