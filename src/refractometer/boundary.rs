@@ -222,50 +222,48 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     let centre = BLOCK * coarse.main_at + BLOCK;
     let k = centre.saturating_sub((3 * w).div_ceil(2)).min(last);
 
-    // Steps around the peak, sign-adjusted so the boundary's step is positive.
+    // The twice-smoothed step H[j] = Σ G[j..j+w] (G smoothed once more by the
+    // same box: a derivative kernel of two tents, so that the peak turns round
+    // and its sampled height, and with it the threshold below, hardly depends
+    // on where the edge falls within a pixel), sign-adjusted so that the
+    // boundary's step is positive. It is usable on lo..=hi (H[hi] needs the last
+    // step G); the walk below may not pass those ends.
     let lo = k.saturating_sub(WINDOW);
-    let hi = (k + WINDOW).min(last);
-    let mut steps = [0i32; 2 * WINDOW + 1];
-    let mut g = step_at(frame, lo, w);
-    for (j, slot) in (lo..=hi).zip(steps.iter_mut()) {
-        *slot = sign * g;
-        g += step_update(frame, j, w);
-    }
-    // Smooth the steps once more with the same box (a derivative kernel of two
-    // tents): the peak turns round, so its sampled height, and with it the
-    // threshold below, hardly depends on where the edge falls within a pixel.
-    let hi = hi.saturating_sub(w - 1).max(lo);
-    let mut run: i32 = steps.iter().take(w).sum();
-    for j in 0..=(hi - lo) {
-        let old = steps.get(j).copied().unwrap_or(0);
-        let new = steps.get(j + w).copied().unwrap_or(0);
-        if let Some(slot) = steps.get_mut(j) {
-            *slot = run;
-        }
-        run += new - old;
-    }
-    let step = |j: usize| steps.get(j.wrapping_sub(lo)).copied().unwrap_or(0);
-    // The highest twice-smoothed step within a block and a smoothing width of
-    // the coarse estimate.
+    let hi = (k + WINDOW).min(last).saturating_sub(w - 1).max(lo);
+    // H near the coarse estimate (the peak search and, for all but very wide
+    // edges, the whole centroid region), four pixel reads per sample; further
+    // out directly (only edges wider than the search reach get there).
     let reach = w + 2 * BLOCK;
-    let mut k = k.clamp(lo, hi);
-    for j in k.saturating_sub(reach).max(lo)..=(k + reach).min(hi) {
-        if step(j) > step(k) {
-            k = j;
+    let k = k.clamp(lo, hi);
+    let first = k.saturating_sub(reach + 1).max(lo);
+    let end = (k + reach + 1).min(hi);
+    let mut near = [0i32; NEAR];
+    let near = near.get_mut(..=end - first).unwrap_or(&mut []);
+    fill_steps(frame, first, w, sign, near);
+    let near: &[i32] = near;
+    let step = |j: usize| match near.get(j.wrapping_sub(first)) {
+        Some(&h) => h,
+        None if (lo..=hi).contains(&j) => sign * twice_smoothed_step(frame, j, w),
+        None => 0,
+    };
+    // The highest twice-smoothed step within a block and a smoothing width of
+    // the coarse estimate (the first one, or the estimate itself, on ties).
+    let (mut best, mut highest) = (k, step(k));
+    let from = k.saturating_sub(reach).max(lo);
+    let range = near
+        .get(from - first..=(k + reach).min(hi) - first)
+        .unwrap_or(&[]);
+    for (j, &h) in (from..).zip(range) {
+        if h > highest {
+            (best, highest) = (j, h);
         }
     }
+    let k = best;
     // Threshold at 0.3 of the peak's height interpolated by a parabola through the
     // three highest samples, which does not depend on the sampling phase.
     let peak = step(k);
-    let (before, after) = (i64::from(step(k.wrapping_sub(1))), i64::from(step(k + 1)));
-    let curvature = 2 * i64::from(peak) - before - after;
-    let rise = if curvature > 0 {
-        ((after - before).pow(2) / (8 * curvature)).min(i64::from(peak))
-    } else {
-        0
-    };
-    let threshold =
-        i32::try_from((i64::from(peak) + rise) * THRESHOLD_NUM / THRESHOLD_DEN).unwrap_or(peak / 2);
+    let (before, after) = (step(k.wrapping_sub(1)), step(k + 1));
+    let threshold = centroid_threshold(peak, before, after);
     let mut jl = k;
     while jl > lo && step(jl - 1) > threshold {
         jl -= 1;
@@ -281,14 +279,13 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         // An edge wider than the window: too blurred to measure.
         return Err(BoundaryFault::LowContrast.into());
     }
-    let (num, den) = centroid_sums(|j| i64::from(step(j) - threshold), jl, jr);
-    if den <= 0 {
-        return Err(BoundaryFault::NoBoundary.into());
-    }
-    let centroid = (num + den / 2).div_euclid(den) + jl as i64 * i64::from(SUBPIXEL);
+    let centroid = centroid_q16(|j| step(j) - threshold, peak - threshold, jl, jr)
+        .ok_or(BoundaryFault::NoBoundary)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
     // moved by (w − 1)/2 by the second box.
-    let position = centroid + i64::from(3 * w32 - 2) * i64::from(SUBPIXEL / 2);
+    let position = centroid
+        + jl as i64 * i64::from(SUBPIXEL)
+        + i64::from(3 * w32 - 2) * i64::from(SUBPIXEL / 2);
     let position = i32::try_from(position).map_err(|_| Error::Overflow)?;
 
     // Plateaus beside the transition (pixels jl ..= jr + 3w − 2 took part).
@@ -301,7 +298,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         .get(left_start..right_end)
         .ok_or(BoundaryFault::AtArrayEnd)?;
     let saturation = i32::from(cfg.saturation_level);
-    if used.iter().any(|&v| v.into() >= saturation) {
+    if brightest(used) >= saturation {
         return Err(BoundaryFault::Saturated.into());
     }
     let left = plateau(frame.get(left_start..left_end).unwrap_or(&[]));
@@ -313,17 +310,19 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     };
     let contrast = bright - dark;
     // σ ≈ 0.5117 · mean |second difference| for white noise (√π / √12).
-    let dd_count = i64::from(left.dd_count + right.dd_count).max(1);
-    let noise_q8 = ((left.dd_sum + right.dd_sum) * 131 + dd_count / 2) / dd_count;
+    let dd_count = (left.dd_count + right.dd_count).max(1);
+    let noise_q8 = mul_div(left.dd_sum + right.dd_sum, 131, dd_count, dd_count / 2);
+    let noise_q8 = i64::from(noise_q8);
     // A step against the expected direction, larger than the configured share
     // of the boundary's step and clear of the noise (eight standard deviations
     // of a block step, σ·√8; eight because σ comes from a few dozen pixels and
     // the largest noise step of a 4096-pixel frame reaches about 4.5), is a
     // second boundary.
-    let opposite = i64::from(opposite);
-    let noise_floor_sq = 64 * noise_q8 * noise_q8 * 2 * i64::from(BLOCK32);
-    if opposite * 100 > i64::from(main) * i64::from(cfg.opposite_percent)
-        && opposite * opposite * 65536 > noise_floor_sq
+    // (Eight σ·√8 in 1/256 count squared is 1024·noise_q8²; against opposite²·65536
+    // that is 8·opposite > noise_q8, both sides non-negative.)
+    // Block steps stay below 8·65535 < 2^19: the products fit i32.
+    if opposite.saturating_mul(100) > main.saturating_mul(i32::from(cfg.opposite_percent))
+        && 8 * i64::from(opposite) > noise_q8
     {
         return Err(BoundaryFault::MultipleBoundaries.into());
     }
@@ -332,7 +331,13 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     }
     // Twice-smoothed steps peak at w²·C for a perfect step, at w²·(steepest
     // slope) for a wide edge.
-    let edge_width_q8 = i64::from(contrast) * i64::from(w32 * w32) * 256 / i64::from(peak.max(1));
+    let edge_width_q8 = mul_div(
+        contrast.unsigned_abs(),
+        (w * w * 256) as u32,
+        peak.max(1).unsigned_abs(),
+        0,
+    );
+    let edge_width_q8 = i64::from(edge_width_q8);
     // Standard uncertainty of the centroid: 2.2 × (noise / contrast) × edge
     // width, fitted on synthetic erf edges with smoothing 4 (tests/boundary.rs:
     // within 20 % of the RMS error measured). On the long-tailed Fresnel edge of
@@ -350,39 +355,136 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     })
 }
 
-/// Area (×6) and first moment (×6, positions in 1/65536 step from `jl`) of the
-/// part above zero of the piecewise-linear curve through `v(j)`, for `v > 0` on
-/// `jl..=jr` and `v ≤ 0` just outside. Integrating the interpolant, with the
-/// partial segments at both ends, makes the centroid move smoothly with the edge
-/// instead of jumping as samples cross the threshold. Fits i64: steps stay below
-/// 2^25 and `jr − jl` below 2·WINDOW.
-fn centroid_sums(v: impl Fn(usize) -> i64, jl: usize, jr: usize) -> (i64, i64) {
-    const ONE: i64 = SUBPIXEL as i64;
-    let (mut moment, mut area) = (0i64, 0i64);
-    for j in jl..jr {
-        let (a, b) = (v(j), v(j + 1));
-        let x = (j - jl) as i64;
-        area += 3 * (a + b);
-        moment += (3 * x * (a + b) + a + 2 * b) * ONE;
+/// Threshold of the centroid: 0.3 of the peak height `peak + (after − before)² /
+/// (8·curvature)` of the parabola through the three highest samples (the rise
+/// at most `peak`). In 32 bits where the samples allow (12-bit frames: steps
+/// below 2^16, so the square below 2^32), else 64.
+fn centroid_threshold(peak: i32, before: i32, after: i32) -> i32 {
+    let curvature = 2 * i64::from(peak) - i64::from(before) - i64::from(after);
+    let spread = i64::from(after) - i64::from(before);
+    let rise = if curvature > 0 {
+        let (num, den) = (spread.unsigned_abs().pow(2), 8 * curvature.unsigned_abs());
+        let q = match (u32::try_from(num), u32::try_from(den)) {
+            (Ok(n), Ok(d)) => u64::from(n / d),
+            _ => num / den,
+        };
+        i64::try_from(q).unwrap_or(i64::MAX).min(i64::from(peak))
+    } else {
+        0
+    };
+    let lifted = i64::from(peak) + rise;
+    match u32::try_from(lifted) {
+        // Peaks stay below 2^25, so 3·lifted fits.
+        Ok(x) if x < 1 << 29 => i32::try_from(div10(3 * x)).unwrap_or(peak / 2),
+        _ => i32::try_from(lifted * THRESHOLD_NUM / THRESHOLD_DEN).unwrap_or(peak / 2),
     }
-    // Left end: zero crossing a length L = b / (b − a) before jl (l = L in Q16).
-    let (a, b) = (v(jl.wrapping_sub(1)).min(0), v(jl));
-    let l = b * ONE / (b - a).max(1);
-    area += 3 * b * l / ONE;
-    moment -= b * l / ONE * l;
-    // Right end: zero crossing L = a / (a − b) after jr.
-    let (a, b) = (v(jr), v(jr + 1).min(0));
-    let l = a * ONE / (a - b).max(1);
-    let x = (jr - jl) as i64;
-    area += 3 * a * l / ONE;
-    moment += 3 * a * l * x + a * l / ONE * l;
-    (moment, area)
+}
+
+/// `n / 10` with shifts and adds: the Cortex-M0 has no divide instruction
+/// (Hacker's Delight, `divu10`; exact for every `u32`).
+fn div10(n: u32) -> u32 {
+    let mut q = (n >> 1) + (n >> 2);
+    q += q >> 4;
+    q += q >> 8;
+    q += q >> 16;
+    q >>= 3;
+    let r = n - q * 10;
+    q + u32::from(r > 9)
+}
+
+/// Centroid, in 1/65536 step from `jl`, of the part above zero of the
+/// piecewise-linear curve through `v(j)`, for `v > 0` on `jl..=jr` and `v ≤ 0`
+/// just outside; `None` for an empty area. Integrating the interpolant, with
+/// the partial segments at both ends, makes the centroid move smoothly with
+/// the edge instead of jumping as samples cross the threshold.
+///
+/// 32-bit arithmetic but for the last few products and the one division: the
+/// values are shifted below 2^16 (no shift for `top` < 2^16, i.e. 12-bit frames
+/// with smoothing 4; values above the peak, possible only beyond the search
+/// reach, are clamped), and at most 2·WINDOW + 1 = 97 samples take part, so
+/// the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below 97·96/2·2^16 <
+/// 2^29 and the first moment (×6) below 2^31. The end segments' zero crossings
+/// `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
+fn centroid_q16(v: impl Fn(usize) -> i32, top: i32, jl: usize, jr: usize) -> Option<i64> {
+    const ONE: i64 = SUBPIXEL as i64;
+    let shift = 16u32.saturating_sub(u32::try_from(top).ok()?.leading_zeros());
+    let value = |j: usize| (v(j) >> shift).min(0xFFFF);
+    // Interior: area×6 = 6 Σ v − 3 (v_0 + v_L), moment×6 = 6 Σ i·v_i + v_0 −
+    // (3L + 1) v_L, with i = j − jl and L = jr − jl; Σ i·v_i = (L + 1) Σ v − Σ of
+    // the running sums.
+    let (mut sum, mut running) = (0i32, 0i32);
+    for j in jl..=jr {
+        sum += value(j);
+        running += sum;
+    }
+    let last = i32::try_from(jr - jl).ok()?;
+    let (v0, vl) = (value(jl), value(jr));
+    let first_moment = (last + 1) * sum - running;
+    let mut area = i64::from(6 * sum - 3 * (v0 + vl));
+    let mut moment = i64::from(6 * first_moment + v0 - (3 * last + 1) * vl) * ONE;
+    // End segments: the zero crossing a length L = b / (b − a) beyond the last
+    // positive sample b (next sample a ≤ 0); a triangle of area b·L/2 and first
+    // moment b·L²/6 about that sample. Returns (b·L in Q16, area×6, moment×6 in Q16).
+    let end = |b: i32, a: i32| -> (i64, i64, i64) {
+        let (b, a) = (b.max(0).unsigned_abs(), a.min(0).unsigned_abs());
+        let l = (b << 16) / b.saturating_add(a).max(1);
+        let bl = b * l;
+        (
+            i64::from(bl),
+            i64::from(bl) * 3 / ONE,
+            i64::from((bl >> 16) * l),
+        )
+    };
+    let (_, left_area, left_moment) = end(v0, value(jl.wrapping_sub(1)));
+    let (right_bl, right_area, right_moment) = end(vl, value(jr + 1));
+    area += left_area + right_area;
+    moment += right_moment - left_moment + 3 * right_bl * i64::from(last);
+    if area <= 0 {
+        return None;
+    }
+    Some((moment + area / 2).div_euclid(area))
 }
 
 /// `2.2 · σ / C · width` in 1/65536 px, integer only.
 fn uncertainty_q16(noise_q8: i64, contrast: i32, edge_width_q8: i64) -> i32 {
-    let u = noise_q8 * edge_width_q8.max(256) * 22 / (10 * i64::from(contrast.max(1)));
+    let clamp = |x: i64| u32::try_from(x).unwrap_or(u32::MAX);
+    let noise_width = u64::from(clamp(noise_q8)) * u64::from(clamp(edge_width_q8.max(256)));
+    let u = match u32::try_from(noise_width) {
+        Ok(nw) => mul_div(nw, 22, 10 * contrast.max(1).unsigned_abs(), 0),
+        Err(_) => {
+            let q =
+                noise_width.saturating_mul(22) / (10 * u64::from(contrast.max(1).unsigned_abs()));
+            u32::try_from(q).unwrap_or(u32::MAX)
+        }
+    };
     i32::try_from(u).unwrap_or(i32::MAX)
+}
+
+/// `(a · b + bias) / den` (`den` 0 counts as 1), saturating at `u32::MAX`: in
+/// 32 bits when the product fits (the usual case), else 64. The Cortex-M0 has
+/// no divide instruction, and its 64-bit division routine costs several times
+/// the 32-bit one.
+fn mul_div(a: u32, b: u32, den: u32, bias: u32) -> u32 {
+    let den = den.max(1);
+    match a.checked_mul(b).and_then(|p| p.checked_add(bias)) {
+        Some(n) => n / den,
+        None => {
+            let q = (u64::from(a) * u64::from(b) + u64::from(bias)) / u64::from(den);
+            u32::try_from(q).unwrap_or(u32::MAX)
+        }
+    }
+}
+
+/// Largest pixel of a slice, four at a time (a load and a compare per pixel).
+fn brightest<P: Copy + Into<i32>>(pixels: &[P]) -> i32 {
+    let mut quads = pixels.chunks_exact(4);
+    let mut top = i32::MIN;
+    for q in &mut quads {
+        if let [a, b, c, d] = *q {
+            top = top.max(a.into().max(b.into()).max(c.into().max(d.into())));
+        }
+    }
+    quads.remainder().iter().fold(top, |t, &v| t.max(v.into()))
 }
 
 fn clamp_u16(x: i32) -> u16 {
@@ -446,34 +548,79 @@ fn step_at<P: Copy + Into<i32>>(frame: &[P], i: usize, w: usize) -> i32 {
     sum(i + w) - sum(i)
 }
 
-/// `G[i+1] − G[i]`.
-fn step_update<P: Copy + Into<i32>>(frame: &[P], i: usize, w: usize) -> i32 {
+/// Samples of the twice-smoothed step kept near the coarse estimate: the
+/// search reach (w + 2 blocks) and one more on each side.
+const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
+
+/// `H[j] = Σ_{m<w} G[j+m]` computed directly: pixels `j .. j + 3w − 1` with tent
+/// weights, `Σ_t min(t + 1, 2w − 1 − t) · (p[j+w+t] − p[j+t])`.
+fn twice_smoothed_step<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> i32 {
     let px = |k: usize| frame.get(k).map_or(0, |&v| v.into());
-    px(i + 2 * w) - 2 * px(i + w) + px(i)
+    (0..2 * w - 1)
+        .map(|t| (t + 1).min(2 * w - 1 - t) as i32 * (px(j + w + t) - px(j + t)))
+        .sum()
+}
+
+/// `sign · H[first + i]` into `out[i]`, by the third difference of the pixels:
+/// `H[j+1] − H[j] = G[j+w] − G[j] =: D[j]` and
+/// `D[j+1] − D[j] = p[j+3w] − 3 p[j+2w] + 3 p[j+w] − p[j] =: T[j]`, four reads
+/// per sample. `out` may reach `H[n − 3w + 1]`, whose last update needs
+/// `T[n − 3w − 1]`, the last one the frame has. Bounds: |H| < 16·16·65535 <
+/// 2^24 and |D| < 2^21 for any `u16` frame, far inside `i32`.
+fn fill_steps<P: Copy + Into<i32>>(
+    frame: &[P],
+    first: usize,
+    w: usize,
+    sign: i32,
+    out: &mut [i32],
+) {
+    let mut h = sign * twice_smoothed_step(frame, first, w);
+    let mut d = sign * (step_at(frame, first + w, w) - step_at(frame, first, w));
+    let (head, rest) = out.split_at_mut(out.len().min(2));
+    for slot in head {
+        *slot = h;
+        h += d;
+    }
+    h -= d;
+    let tap = |k: usize| frame.get(first + k * w..).unwrap_or(&[]);
+    let taps = tap(0).iter().zip(tap(1)).zip(tap(2)).zip(tap(3));
+    for (slot, (((&p0, &p1), &p2), &p3)) in rest.iter_mut().zip(taps) {
+        let (p0, p1, p2, p3): (i32, i32, i32, i32) = (p0.into(), p1.into(), p2.into(), p3.into());
+        d += sign * (p3 - p0 - 3 * (p2 - p1));
+        h += d;
+        *slot = h;
+    }
 }
 
 struct Plateau {
     mean: i32,
-    dd_sum: i64,
-    dd_count: i32,
+    dd_sum: u32,
+    dd_count: u32,
 }
 
+/// Mean level and sum of |second differences| of a plateau of at most 64
+/// pixels: sums below 64·65535 < 2^22 (in magnitude, for any `i16` or `u16`
+/// pixel type) and 62·4·65535 < 2^24, 32 bits suffice.
 fn plateau<P: Copy + Into<i32>>(pixels: &[P]) -> Plateau {
-    let n = pixels.len().max(1) as i64;
-    let sum: i64 = pixels.iter().map(|&v| i64::from(v.into())).sum();
-    let mut dd_sum = 0i64;
-    let mut dd_count = 0i32;
-    for ((&a, &b), &c) in pixels
-        .iter()
-        .zip(pixels.get(1..).unwrap_or(&[]))
-        .zip(pixels.get(2..).unwrap_or(&[]))
-    {
-        let (a, b, c): (i32, i32, i32) = (a.into(), b.into(), c.into());
-        dd_sum += i64::from((a - 2 * b + c).abs());
-        dd_count += 1;
+    let n = i32::try_from(pixels.len()).unwrap_or(i32::MAX).max(1);
+    let (head, tail) = pixels.split_at(pixels.len().min(2));
+    let mut pair = head.iter().map(|&v| v.into());
+    let (mut a, mut b): (i32, i32) = (pair.next().unwrap_or(0), pair.next().unwrap_or(0));
+    let (mut sum, mut dd_sum) = (a + b, 0u32);
+    for &c in tail {
+        let c: i32 = c.into();
+        sum += c;
+        dd_sum += (a - 2 * b + c).unsigned_abs();
+        (a, b) = (b, c);
     }
+    let dd_count = u32::try_from(tail.len()).unwrap_or(0);
+    // A power-of-two plateau (the default 16) needs no division.
+    let mean = match u32::try_from(sum + n / 2) {
+        Ok(s) if n.unsigned_abs().is_power_of_two() => (s >> n.trailing_zeros()) as i32,
+        _ => (sum + n / 2) / n,
+    };
     Plateau {
-        mean: i32::try_from((sum + n / 2) / n).unwrap_or(i32::MAX),
+        mean,
         dd_sum,
         dd_count,
     }
