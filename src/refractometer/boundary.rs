@@ -239,11 +239,15 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     let end = (k + reach + 1).min(hi);
     let mut near = [0i32; NEAR];
     let near = near.get_mut(..=end - first).unwrap_or(&mut []);
-    fill_steps(frame, first, w, sign, near);
+    if sign > 0 {
+        fill_steps::<P, true>(frame, first, w, near);
+    } else {
+        fill_steps::<P, false>(frame, first, w, near);
+    }
     let near: &[i32] = near;
     let step = |j: usize| match near.get(j.wrapping_sub(first)) {
         Some(&h) => h,
-        None if (lo..=hi).contains(&j) => sign * twice_smoothed_step(frame, j, w),
+        None if (lo..=hi).contains(&j) => sign * step_and_slope(frame, j, w).0,
         None => 0,
     };
     // The highest twice-smoothed step within a block and a smoothing width of
@@ -264,12 +268,27 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     let peak = step(k);
     let (before, after) = (step(k.wrapping_sub(1)), step(k + 1));
     let threshold = centroid_threshold(peak, before, after);
-    let mut jl = k;
-    while jl > lo && step(jl - 1) > threshold {
+    // Down to the threshold on both sides: on the stored samples, then (edges
+    // wider than the search reach) sample by sample up to the window's ends.
+    let above = |h: &&i32| **h > threshold;
+    let at = k - first;
+    let mut jl = k - near
+        .get(..at)
+        .unwrap_or(&[])
+        .iter()
+        .rev()
+        .take_while(above)
+        .count();
+    while jl == first && jl > lo && step(jl - 1) > threshold {
         jl -= 1;
     }
-    let mut jr = k;
-    while jr < hi && step(jr + 1) > threshold {
+    let mut jr = k + near
+        .get(at + 1..)
+        .unwrap_or(&[])
+        .iter()
+        .take_while(above)
+        .count();
+    while jr >= end && jr < hi && step(jr + 1) > threshold {
         jr += 1;
     }
     if jl == 0 || jr + w > last {
@@ -279,8 +298,17 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         // An edge wider than the window: too blurred to measure.
         return Err(BoundaryFault::LowContrast.into());
     }
-    let centroid = centroid_q16(|j| step(j) - threshold, peak - threshold, jl, jr)
-        .ok_or(BoundaryFault::NoBoundary)?;
+    // The samples jl − 1 ..= jr + 1: stored ones, or gathered for a wide edge.
+    let wide: [i32; 2 * WINDOW + 3];
+    let samples = match near.get(jl - 1 - first.min(jl - 1)..=jr + 1 - first) {
+        Some(s) if jl > first => s,
+        _ => {
+            wide = core::array::from_fn(|i| step(jl - 1 + i));
+            wide.get(..jr - jl + 3).unwrap_or(&[])
+        }
+    };
+    let centroid =
+        centroid_q16(samples, threshold, peak - threshold).ok_or(BoundaryFault::NoBoundary)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
     // moved by (w − 1)/2 by the second box.
     let position = centroid
@@ -392,53 +420,55 @@ fn div10(n: u32) -> u32 {
     q + u32::from(r > 9)
 }
 
-/// Centroid, in 1/65536 step from `jl`, of the part above zero of the
-/// piecewise-linear curve through `v(j)`, for `v > 0` on `jl..=jr` and `v ≤ 0`
-/// just outside; `None` for an empty area. Integrating the interpolant, with
-/// the partial segments at both ends, makes the centroid move smoothly with
-/// the edge instead of jumping as samples cross the threshold.
+/// Centroid, in 1/65536 step from the second sample, of the part above
+/// `threshold` of the piecewise-linear curve through `steps`, which are above
+/// it but for the first and the last; `None` for an empty area. Integrating
+/// the interpolant, with the partial segments at both ends, makes the centroid
+/// move smoothly with the edge instead of jumping as samples cross the
+/// threshold.
 ///
 /// 32-bit arithmetic but for the last few products and the one division: the
-/// values are shifted below 2^16 (no shift for `top` < 2^16, i.e. 12-bit frames
-/// with smoothing 4; values above the peak, possible only beyond the search
-/// reach, are clamped), and at most 2·WINDOW + 1 = 97 samples take part, so
-/// the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below 97·96/2·2^16 <
-/// 2^29 and the first moment (×6) below 2^31. The end segments' zero crossings
-/// `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
-fn centroid_q16(v: impl Fn(usize) -> i32, top: i32, jl: usize, jr: usize) -> Option<i64> {
+/// values above the threshold are shifted below 2^16 (no shift for `top` <
+/// 2^16, i.e. 12-bit frames with smoothing 4; values above the peak, possible
+/// only beyond the search reach, are clamped), and at most 2·WINDOW + 1 = 97
+/// samples take part, so the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below
+/// 97·96/2·2^16 < 2^29 and the first moment (×6) below 2^31. The end segments'
+/// zero crossings `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
+fn centroid_q16(steps: &[i32], threshold: i32, top: i32) -> Option<i64> {
     const ONE: i64 = SUBPIXEL as i64;
     let shift = 16u32.saturating_sub(u32::try_from(top).ok()?.leading_zeros());
-    let value = |j: usize| (v(j) >> shift).min(0xFFFF);
+    let value = |h: i32| ((h - threshold) >> shift).min(0xFFFF);
+    let (&outside_left, rest) = steps.split_first()?;
+    let (&outside_right, region) = rest.split_last()?;
+    let (v0, vl) = (value(*region.first()?), value(*region.last()?));
     // Interior: area×6 = 6 Σ v − 3 (v_0 + v_L), moment×6 = 6 Σ i·v_i + v_0 −
-    // (3L + 1) v_L, with i = j − jl and L = jr − jl; Σ i·v_i = (L + 1) Σ v − Σ of
-    // the running sums.
+    // (3L + 1) v_L, with i counted from the first sample above the threshold
+    // and L the last i; Σ i·v_i = (L + 1) Σ v − Σ of the running sums.
     let (mut sum, mut running) = (0i32, 0i32);
-    for j in jl..=jr {
-        sum += value(j);
+    for &h in region {
+        sum += value(h);
         running += sum;
     }
-    let last = i32::try_from(jr - jl).ok()?;
-    let (v0, vl) = (value(jl), value(jr));
+    let last = i32::try_from(region.len() - 1).ok()?;
     let first_moment = (last + 1) * sum - running;
     let mut area = i64::from(6 * sum - 3 * (v0 + vl));
     let mut moment = i64::from(6 * first_moment + v0 - (3 * last + 1) * vl) * ONE;
     // End segments: the zero crossing a length L = b / (b − a) beyond the last
     // positive sample b (next sample a ≤ 0); a triangle of area b·L/2 and first
     // moment b·L²/6 about that sample. Returns (b·L in Q16, area×6, moment×6 in Q16).
-    let end = |b: i32, a: i32| -> (i64, i64, i64) {
+    let end = |b: i32, a: i32| -> (u32, i64, i64) {
         let (b, a) = (b.max(0).unsigned_abs(), a.min(0).unsigned_abs());
         let l = (b << 16) / b.saturating_add(a).max(1);
         let bl = b * l;
-        (
-            i64::from(bl),
-            i64::from(bl) * 3 / ONE,
-            i64::from((bl >> 16) * l),
-        )
+        (bl, i64::from(bl) * 3 / ONE, i64::from((bl >> 16) * l))
     };
-    let (_, left_area, left_moment) = end(v0, value(jl.wrapping_sub(1)));
-    let (right_bl, right_area, right_moment) = end(vl, value(jr + 1));
+    let (_, left_area, left_moment) = end(v0, value(outside_left));
+    let (right_bl, right_area, right_moment) = end(vl, value(outside_right));
     area += left_area + right_area;
-    moment += right_moment - left_moment + 3 * right_bl * i64::from(last);
+    // 3·b·L·x: below 3 · 2^32 · 96, as a sum of two 32-bit products.
+    let right_lever = (i64::from((right_bl >> 16) * (3 * last.unsigned_abs())) << 16)
+        + i64::from((right_bl & 0xFFFF) * (3 * last.unsigned_abs()));
+    moment += right_moment - left_moment + right_lever;
     if area <= 0 {
         return None;
     }
@@ -510,9 +540,17 @@ struct Coarse {
 /// compiles to 39 instructions per block on the usual path (no new extreme):
 /// about 4.9 per pixel in the assembly, 5.1 measured (see the module docs).
 fn coarse_pass<P: Copy + Into<i32>, const RISING: bool>(frame: &[P]) -> Coarse {
-    let mut blocks = frame
-        .chunks_exact(BLOCK)
-        .map(|c| c.iter().fold(0i32, |acc, &v| acc + v.into()));
+    // Eight loads and adds written out: a loop would cost a compare and a
+    // branch per pixel more on cores that do not unroll it (opt-level "s").
+    let sum = |c: &[P; BLOCK]| -> i32 {
+        let [a, b, c, d, e, f, g, h] = *c;
+        (a.into() + b.into())
+            + (c.into() + d.into())
+            + (e.into() + f.into())
+            + (g.into() + h.into())
+    };
+    let (chunks, _) = frame.as_chunks::<BLOCK>();
+    let mut blocks = chunks.iter().map(sum);
     let mut previous = blocks.next().unwrap_or(0);
     let (mut main, mut main_at, mut least) = (i32::MIN, 0usize, i32::MAX);
     for (b, sum) in blocks.enumerate() {
@@ -535,58 +573,56 @@ fn coarse_pass<P: Copy + Into<i32>, const RISING: bool>(frame: &[P]) -> Coarse {
     }
 }
 
-/// `G[i]` computed directly.
-fn step_at<P: Copy + Into<i32>>(frame: &[P], i: usize, w: usize) -> i32 {
-    let sum = |a: usize| -> i32 {
-        frame
-            .get(a..a + w)
-            .unwrap_or(&[])
-            .iter()
-            .map(|&v| v.into())
-            .sum()
-    };
-    sum(i + w) - sum(i)
-}
-
 /// Samples of the twice-smoothed step kept near the coarse estimate: the
 /// search reach (w + 2 blocks) and one more on each side.
 const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
 
-/// `H[j] = Σ_{m<w} G[j+m]` computed directly: pixels `j .. j + 3w − 1` with tent
-/// weights, `Σ_t min(t + 1, 2w − 1 − t) · (p[j+w+t] − p[j+t])`.
-fn twice_smoothed_step<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> i32 {
-    let px = |k: usize| frame.get(k).map_or(0, |&v| v.into());
-    (0..2 * w - 1)
-        .map(|t| (t + 1).min(2 * w - 1 - t) as i32 * (px(j + w + t) - px(j + t)))
-        .sum()
+/// `(H[j], D[j])` computed directly, from running box sums `S(i) = Σ p[i..i+w]`:
+/// `H[j] = Σ_{m<w} (S(j+w+m) − S(j+m))` and `D[j] = G[j+w] − G[j] = S(j+2w) −
+/// 2 S(j+w) + S(j)` (`D` needs one pixel more than `H`; past the frame it is
+/// not used).
+fn step_and_slope<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> (i32, i32) {
+    let window = frame.get(j..).unwrap_or(&[]);
+    let px = |k: usize| window.get(k).map_or(0, |&v| v.into());
+    let s0: i32 = (0..w).map(px).sum();
+    let (mut s, mut lower, mut upper) = (s0, 0, 0);
+    for m in 0..w {
+        lower += s;
+        s += px(m + w) - px(m);
+    }
+    let middle = s;
+    for m in w..2 * w {
+        upper += s;
+        s += px(m + w) - px(m);
+    }
+    (upper - lower, s - 2 * middle + s0)
 }
 
-/// `sign · H[first + i]` into `out[i]`, by the third difference of the pixels:
-/// `H[j+1] − H[j] = G[j+w] − G[j] =: D[j]` and
-/// `D[j+1] − D[j] = p[j+3w] − 3 p[j+2w] + 3 p[j+w] − p[j] =: T[j]`, four reads
-/// per sample. `out` may reach `H[n − 3w + 1]`, whose last update needs
+/// `H[first + i]` (sign-adjusted: negated unless `RISING`) into `out[i]`, by
+/// the third difference of the pixels: `H[j+1] − H[j] = G[j+w] − G[j] =: D[j]`
+/// and `D[j+1] − D[j] = p[j+3w] − 3 p[j+2w] + 3 p[j+w] − p[j] =: T[j]`, four
+/// reads per sample. `out` may reach `H[n − 3w + 1]`, whose last update needs
 /// `T[n − 3w − 1]`, the last one the frame has. Bounds: |H| < 16·16·65535 <
 /// 2^24 and |D| < 2^21 for any `u16` frame, far inside `i32`.
-fn fill_steps<P: Copy + Into<i32>>(
+fn fill_steps<P: Copy + Into<i32>, const RISING: bool>(
     frame: &[P],
     first: usize,
     w: usize,
-    sign: i32,
     out: &mut [i32],
 ) {
-    let mut h = sign * twice_smoothed_step(frame, first, w);
-    let mut d = sign * (step_at(frame, first + w, w) - step_at(frame, first, w));
+    let (h, d) = step_and_slope(frame, first, w);
+    let (mut h, mut d) = if RISING { (h, d) } else { (-h, -d) };
     let (head, rest) = out.split_at_mut(out.len().min(2));
     for slot in head {
         *slot = h;
         h += d;
     }
     h -= d;
-    let tap = |k: usize| frame.get(first + k * w..).unwrap_or(&[]);
-    let taps = tap(0).iter().zip(tap(1)).zip(tap(2)).zip(tap(3));
-    for (slot, (((&p0, &p1), &p2), &p3)) in rest.iter_mut().zip(taps) {
-        let (p0, p1, p2, p3): (i32, i32, i32, i32) = (p0.into(), p1.into(), p2.into(), p3.into());
-        d += sign * (p3 - p0 - 3 * (p2 - p1));
+    let taps = frame.get(first..).unwrap_or(&[]).windows(3 * w + 1);
+    for (slot, x) in rest.iter_mut().zip(taps) {
+        let tap = |i: usize| x.get(i).map_or(0, |&v| v.into());
+        let third = tap(3 * w) - tap(0) - 3 * (tap(2 * w) - tap(w));
+        d += if RISING { third } else { -third };
         h += d;
         *slot = h;
     }
