@@ -279,7 +279,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         .rev()
         .take_while(above)
         .count();
-    while jl == first && jl > lo && step(jl - 1) > threshold {
+    while jl <= first && jl > lo && step(jl - 1) > threshold {
         jl -= 1;
     }
     let mut jr = k + near
@@ -340,7 +340,6 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     // σ ≈ 0.5117 · mean |second difference| for white noise (√π / √12).
     let dd_count = (left.dd_count + right.dd_count).max(1);
     let noise_q8 = mul_div(left.dd_sum + right.dd_sum, 131, dd_count, dd_count / 2);
-    let noise_q8 = i64::from(noise_q8);
     // A step against the expected direction, larger than the configured share
     // of the boundary's step and clear of the noise (eight standard deviations
     // of a block step, σ·√8; eight because σ comes from a few dozen pixels and
@@ -350,11 +349,14 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     // that is 8·opposite > noise_q8, both sides non-negative.)
     // Block steps stay below 8·65535 < 2^19: the products fit i32.
     if opposite.saturating_mul(100) > main.saturating_mul(i32::from(cfg.opposite_percent))
-        && 8 * i64::from(opposite) > noise_q8
+        && u32::try_from(opposite).is_ok_and(|o| o.saturating_mul(8) > noise_q8)
     {
         return Err(BoundaryFault::MultipleBoundaries.into());
     }
-    if contrast < i32::from(cfg.min_contrast) || i64::from(contrast) * 256 < 5 * noise_q8 {
+    // (Means of at most 16-bit pixels: contrast·256 < 2^24.)
+    if contrast < i32::from(cfg.min_contrast)
+        || contrast.unsigned_abs() * 256 < noise_q8.saturating_mul(5)
+    {
         return Err(BoundaryFault::LowContrast.into());
     }
     // Twice-smoothed steps peak at w²·C for a perfect step, at w²·(steepest
@@ -365,7 +367,6 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         peak.max(1).unsigned_abs(),
         0,
     );
-    let edge_width_q8 = i64::from(edge_width_q8);
     // Standard uncertainty of the centroid: 2.2 × (noise / contrast) × edge
     // width, fitted on synthetic erf edges with smoothing 4 (tests/boundary.rs:
     // within 20 % of the RMS error measured). On the long-tailed Fresnel edge of
@@ -377,8 +378,8 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         position,
         dark_level: clamp_u16(dark),
         bright_level: clamp_u16(bright),
-        noise_q8: u32::try_from(noise_q8).unwrap_or(u32::MAX),
-        edge_width_q8: u32::try_from(edge_width_q8).unwrap_or(u32::MAX),
+        noise_q8,
+        edge_width_q8,
         uncertainty,
     })
 }
@@ -388,15 +389,18 @@ pub fn find_boundary<P: Copy + Into<i32>>(
 /// at most `peak`). In 32 bits where the samples allow (12-bit frames: steps
 /// below 2^16, so the square below 2^32), else 64.
 fn centroid_threshold(peak: i32, before: i32, after: i32) -> i32 {
-    let curvature = 2 * i64::from(peak) - i64::from(before) - i64::from(after);
-    let spread = i64::from(after) - i64::from(before);
+    // Steps stay below 2^25 in magnitude: curvature and spread fit i32.
+    let curvature = 2 * peak - before - after;
+    let spread = (after - before).unsigned_abs();
     let rise = if curvature > 0 {
-        let (num, den) = (spread.unsigned_abs().pow(2), 8 * curvature.unsigned_abs());
-        let q = match (u32::try_from(num), u32::try_from(den)) {
-            (Ok(n), Ok(d)) => u64::from(n / d),
-            _ => num / den,
+        let den = curvature.unsigned_abs().saturating_mul(8);
+        // (`checked_mul` would cost a 64-bit multiplication on the M0.)
+        let q = if spread < 1 << 16 {
+            (spread * spread) / den.max(1)
+        } else {
+            u32::try_from(u64::from(spread).pow(2) / u64::from(den.max(1))).unwrap_or(u32::MAX)
         };
-        i64::try_from(q).unwrap_or(i64::MAX).min(i64::from(peak))
+        i64::from(q).min(i64::from(peak))
     } else {
         0
     };
@@ -460,7 +464,9 @@ fn centroid_q16(steps: &[i32], threshold: i32, top: i32) -> Option<i64> {
         let (b, a) = (b.max(0).unsigned_abs(), a.min(0).unsigned_abs());
         let l = (b << 16) / b.saturating_add(a).max(1);
         let bl = b * l;
-        (bl, i64::from(bl) * 3 / ONE, i64::from((bl >> 16) * l))
+        // 3·b·L / 2^16 exactly, in halves: 3·(b·L mod 2^16) < 2^18.
+        let area = 3 * (bl >> 16) + ((3 * (bl & 0xFFFF)) >> 16);
+        (bl, i64::from(area), i64::from((bl >> 16) * l))
     };
     let (_, left_area, left_moment) = end(v0, value(outside_left));
     let (right_bl, right_area, right_moment) = end(vl, value(outside_right));
@@ -476,16 +482,17 @@ fn centroid_q16(steps: &[i32], threshold: i32, top: i32) -> Option<i64> {
 }
 
 /// `2.2 · σ / C · width` in 1/65536 px, integer only.
-fn uncertainty_q16(noise_q8: i64, contrast: i32, edge_width_q8: i64) -> i32 {
-    let clamp = |x: i64| u32::try_from(x).unwrap_or(u32::MAX);
-    let noise_width = u64::from(clamp(noise_q8)) * u64::from(clamp(edge_width_q8.max(256)));
-    let u = match u32::try_from(noise_width) {
-        Ok(nw) => mul_div(nw, 22, 10 * contrast.max(1).unsigned_abs(), 0),
-        Err(_) => {
-            let q =
-                noise_width.saturating_mul(22) / (10 * u64::from(contrast.max(1).unsigned_abs()));
-            u32::try_from(q).unwrap_or(u32::MAX)
-        }
+fn uncertainty_q16(noise_q8: u32, contrast: i32, edge_width_q8: u32) -> i32 {
+    // Contrast at most 65535: 10·contrast fits.
+    let den = contrast.max(1).unsigned_abs().saturating_mul(10);
+    let width = edge_width_q8.max(256);
+    // 22·noise < 2^21 and width < 2^11 (noise below 372 counts, edges narrower
+    // than 8 px): the product fits 32 bits.
+    let u = if noise_q8 < 1 << 16 && width < 1 << 11 {
+        (22 * noise_q8 * width) / den.max(1)
+    } else {
+        let q = (u64::from(noise_q8) * u64::from(width)).saturating_mul(22) / u64::from(den.max(1));
+        u32::try_from(q).unwrap_or(u32::MAX)
     };
     i32::try_from(u).unwrap_or(i32::MAX)
 }
@@ -496,12 +503,13 @@ fn uncertainty_q16(noise_q8: i64, contrast: i32, edge_width_q8: i64) -> i32 {
 /// the 32-bit one.
 fn mul_div(a: u32, b: u32, den: u32, bias: u32) -> u32 {
     let den = den.max(1);
-    match a.checked_mul(b).and_then(|p| p.checked_add(bias)) {
-        Some(n) => n / den,
-        None => {
-            let q = (u64::from(a) * u64::from(b) + u64::from(bias)) / u64::from(den);
-            u32::try_from(q).unwrap_or(u32::MAX)
-        }
+    // Factors and bias below 2^16: no overflow (`checked_mul`
+    // would cost a 64-bit multiplication on the M0).
+    if a < 1 << 16 && b < 1 << 16 && bias < 1 << 16 {
+        (a * b + bias) / den
+    } else {
+        let q = (u64::from(a) * u64::from(b) + u64::from(bias)) / u64::from(den);
+        u32::try_from(q).unwrap_or(u32::MAX)
     }
 }
 
@@ -742,4 +750,21 @@ pub fn flat_field_gains(
         *g = u16::try_from(q).map_err(|_| Error::OutOfRange(Quantity::SensorFrame))?;
     }
     u16::try_from(mean).map_err(|_| Error::Overflow)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::div10;
+
+    #[test]
+    fn div10_is_exact() {
+        // Every value near the quotient steps at the low end, then a stride over
+        // the whole range, and the top.
+        let low = 0..100_000u32;
+        let stride = (0..=u32::MAX / 65_521).map(|k| k * 65_521);
+        let top = u32::MAX - 1000..=u32::MAX;
+        for n in low.chain(stride).chain(top) {
+            assert_eq!(div10(n), n / 10, "{n}");
+        }
+    }
 }
