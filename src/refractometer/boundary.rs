@@ -12,10 +12,12 @@
 //!    second edge of the opposite sign (a bubble, a smear on the prism) shows up
 //!    there without a second pass.
 //! 2. Around the peak only (a bounded window, not the frame), the step
-//!    `G[i] = Σ p[i+w..i+2w] − Σ p[i..i+w]` (smoothing `w`) is computed by a
-//!    running update, smoothed once more by the same box, and the sub-pixel
-//!    position is the centroid of `G − 0.3·G_peak` over the contiguous region where it is
-//!    positive, integrating the piecewise-linear interpolant (partial segments at
+//!    `G[i] = Σ p[i+w..i+2w] − Σ p[i..i+w]` (smoothing `w`), smoothed once more
+//!    by the same box, `H[j] = Σ G[j..j+w]`, is computed for the samples near
+//!    the coarse estimate by its third difference (four pixel reads per
+//!    sample, further out only where a wide edge needs it), and the sub-pixel
+//!    position is the centroid of `H − 0.3·H_peak` over the contiguous region
+//!    where it is positive, integrating the piecewise-linear interpolant (partial segments at
 //!    both ends included) so that the centroid moves smoothly with the edge: the
 //!    position-dependent bias stays near 0.002 px on noiseless edges. The 0.3
 //!    threshold trades noise (lower is quieter) against the pull of the Fresnel
@@ -24,11 +26,15 @@
 //!    contrast, a noise estimate (from second differences, blind to slow
 //!    vignetting slopes) and the saturation check.
 //!
-//! The per-pixel work is a load and an add; no heap, no floating point. On a
-//! Cortex-M0 (`thumbv6m-none-eabi`, rustc 1.95, opt-level 3, LTO; QEMU
-//! `microbit` with `-icount`, counted through SysTick) a frame costs about
-//! 5.1 instructions per pixel plus about 15 800 for the refinement around the
-//! boundary: about 26 000 instructions for 2048 pixels. The centroid sits at the steepest part of the edge, which
+//! The per-pixel work is a load and an add; no heap, no floating point, and
+//! 32-bit arithmetic but for one 64-bit division per frame (the Cortex-M0 has
+//! no divide instruction: each division is a library call of about 140
+//! instructions, and a frame needs seven). On a Cortex-M0
+//! (`thumbv6m-none-eabi`, rustc 1.95, the board images' `opt-level = "s"`,
+//! fat LTO; QEMU `microbit` with `-icount`, counted through SysTick; items
+//! `boundary finder` in `examples/boards/kit`) a frame costs 5.0 instructions
+//! per pixel plus about 5 200 per frame (refinement, plateaus, checks): about
+//! 10 300 for 1024 pixels, 840 bytes of stack. The centroid sits at the steepest part of the edge, which
 //! for a Fresnel-shaped edge lies a fixed fraction of the blur width beside the
 //! true critical angle; the instrument's calibration against standards removes
 //! that offset along with the other geometry errors.
@@ -299,16 +305,12 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         return Err(BoundaryFault::LowContrast.into());
     }
     // The samples jl − 1 ..= jr + 1: stored ones, or gathered for a wide edge.
-    let wide: [i32; 2 * WINDOW + 3];
-    let samples = match near.get(jl - 1 - first.min(jl - 1)..=jr + 1 - first) {
-        Some(s) if jl > first => s,
-        _ => {
-            wide = core::array::from_fn(|i| step(jl - 1 + i));
-            wide.get(..jr - jl + 3).unwrap_or(&[])
-        }
-    };
-    let centroid =
-        centroid_q16(samples, threshold, peak - threshold).ok_or(BoundaryFault::NoBoundary)?;
+    let top = peak - threshold;
+    let centroid = match near.get(jl - 1 - first.min(jl - 1)..=jr + 1 - first) {
+        Some(stored) if jl > first => centroid_q16(stored.iter().copied(), threshold, top),
+        _ => centroid_q16((jl - 1..=jr + 1).map(step), threshold, top),
+    }
+    .ok_or(BoundaryFault::NoBoundary)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
     // moved by (w − 1)/2 by the second box.
     let position = centroid
@@ -425,8 +427,8 @@ fn div10(n: u32) -> u32 {
 }
 
 /// Centroid, in 1/65536 step from the second sample, of the part above
-/// `threshold` of the piecewise-linear curve through `steps`, which are above
-/// it but for the first and the last; `None` for an empty area. Integrating
+/// `threshold` of the piecewise-linear curve through `steps` (at least three),
+/// which are above it but for the first and the last; `None` for an empty area. Integrating
 /// the interpolant, with the partial segments at both ends, makes the centroid
 /// move smoothly with the edge instead of jumping as samples cross the
 /// threshold.
@@ -438,22 +440,27 @@ fn div10(n: u32) -> u32 {
 /// samples take part, so the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below
 /// 97·96/2·2^16 < 2^29 and the first moment (×6) below 2^31. The end segments'
 /// zero crossings `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
-fn centroid_q16(steps: &[i32], threshold: i32, top: i32) -> Option<i64> {
+fn centroid_q16(mut steps: impl Iterator<Item = i32>, threshold: i32, top: i32) -> Option<i64> {
     const ONE: i64 = SUBPIXEL as i64;
     let shift = 16u32.saturating_sub(u32::try_from(top).ok()?.leading_zeros());
     let value = |h: i32| ((h - threshold) >> shift).min(0xFFFF);
-    let (&outside_left, rest) = steps.split_first()?;
-    let (&outside_right, region) = rest.split_last()?;
-    let (v0, vl) = (value(*region.first()?), value(*region.last()?));
     // Interior: area×6 = 6 Σ v − 3 (v_0 + v_L), moment×6 = 6 Σ i·v_i + v_0 −
     // (3L + 1) v_L, with i counted from the first sample above the threshold
-    // and L the last i; Σ i·v_i = (L + 1) Σ v − Σ of the running sums.
-    let (mut sum, mut running) = (0i32, 0i32);
-    for &h in region {
-        sum += value(h);
+    // and L the last i; Σ i·v_i = (L + 1) Σ v − Σ of the running sums. One pass:
+    // a sample is inside once another follows it.
+    let outside_left = steps.next()?;
+    let mut pending = steps.next()?;
+    let v0 = value(pending);
+    let (mut sum, mut running, mut count, mut vl) = (0i32, 0i32, 0i32, v0);
+    for h in steps {
+        vl = value(pending);
+        sum += vl;
         running += sum;
+        count += 1;
+        pending = h;
     }
-    let last = i32::try_from(region.len() - 1).ok()?;
+    let outside_right = pending;
+    let last = count.checked_sub(1)?;
     let first_moment = (last + 1) * sum - running;
     let mut area = i64::from(6 * sum - 3 * (v0 + vl));
     let mut moment = i64::from(6 * first_moment + v0 - (3 * last + 1) * vl) * ONE;
@@ -544,9 +551,8 @@ struct Coarse {
 /// The single pass over the frame: sums of 8-pixel blocks, and the difference
 /// of neighbouring blocks (a box-smoothed step), keeping the largest step each
 /// way. Per pixel it is a load and an add; per block a subtraction and two
-/// compares. On `thumbv6m-none-eabi` (rustc 1.95, opt-level 3, LTO) the loop
-/// compiles to 39 instructions per block on the usual path (no new extreme):
-/// about 4.9 per pixel in the assembly, 5.1 measured (see the module docs).
+/// compares. On `thumbv6m-none-eabi` (rustc 1.95, opt-level "s", fat LTO) it
+/// measures 5.0 instructions per pixel (see the module docs).
 fn coarse_pass<P: Copy + Into<i32>, const RISING: bool>(frame: &[P]) -> Coarse {
     // Eight loads and adds written out: a loop would cost a compare and a
     // branch per pixel more on cores that do not unroll it (opt-level "s").
