@@ -596,18 +596,23 @@ const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
 /// 2 S(j+w) + S(j)` (`D` needs one pixel more than `H`; past the frame it is
 /// not used).
 fn step_and_slope<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> (i32, i32) {
+    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2; the last of D's may
+    // be missing (then read as 0, and D is not used).
     let window = frame.get(j..).unwrap_or(&[]);
-    let px = |k: usize| window.get(k).map_or(0, |&v| v.into());
-    let s0: i32 = (0..w).map(px).sum();
-    let (mut s, mut lower, mut upper) = (s0, 0, 0);
-    for m in 0..w {
+    let leaving = window.get(..window.len().min(2 * w)).unwrap_or(&[]);
+    let entering = window.get(w..window.len().min(3 * w)).unwrap_or(&[]);
+    let s0: i32 = leaving.iter().take(w).map(|&v| v.into()).sum();
+    let (mut s, mut lower, mut upper, mut middle) = (s0, 0, 0, s0);
+    let (first_half, second_half) = leaving.split_at(leaving.len().min(w));
+    for (&out, &inn) in first_half.iter().zip(entering) {
         lower += s;
-        s += px(m + w) - px(m);
+        s += inn.into() - out.into();
+        middle = s;
     }
-    let middle = s;
-    for m in w..2 * w {
+    let later = entering.get(w..).unwrap_or(&[]);
+    for (m, &out) in second_half.iter().enumerate() {
         upper += s;
-        s += px(m + w) - px(m);
+        s += later.get(m).map_or(0, |&v| v.into()) - out.into();
     }
     (upper - lower, s - 2 * middle + s0)
 }
@@ -760,7 +765,47 @@ pub fn flat_field_gains(
 
 #[cfg(test)]
 mod tests {
-    use super::div10;
+    use super::{div10, fill_steps, step_and_slope};
+
+    /// `G[i]` and `H[j]` straight from their definitions.
+    fn g(p: &[u16], i: usize, w: usize) -> i32 {
+        let sum = |a: usize| p[a..a + w].iter().map(|&v| i32::from(v)).sum::<i32>();
+        sum(i + w) - sum(i)
+    }
+    fn h(p: &[u16], j: usize, w: usize) -> i32 {
+        (j..j + w).map(|i| g(p, i, w)).sum()
+    }
+
+    #[test]
+    fn steps_match_their_definition_up_to_the_last_one() {
+        let mut x = 0x2545_F491u32;
+        let p: [u16; 80] = core::array::from_fn(|_| {
+            x ^= x << 13;
+            x ^= x >> 17;
+            x ^= x << 5;
+            (x % 65536) as u16
+        });
+        for w in 1..=16 {
+            let hi = p.len() - 3 * w + 1;
+            for j in 0..=hi {
+                let (hj, dj) = step_and_slope(&p, j, w);
+                assert_eq!(hj, h(&p, j, w), "H w {w} j {j}");
+                if j < hi {
+                    assert_eq!(dj, h(&p, j + 1, w) - hj, "D w {w} j {j}");
+                }
+            }
+            for first in [0, hi / 2, hi.saturating_sub(3)] {
+                let (mut out, mut neg) = ([0i32; 80], [0i32; 80]);
+                let (out, neg) = (&mut out[..=hi - first], &mut neg[..=hi - first]);
+                fill_steps::<u16, true>(&p, first, w, out);
+                fill_steps::<u16, false>(&p, first, w, neg);
+                for (i, (&a, &b)) in out.iter().zip(neg.iter()).enumerate() {
+                    assert_eq!(a, h(&p, first + i, w), "fill w {w} j {}", first + i);
+                    assert_eq!(b, -a);
+                }
+            }
+        }
+    }
 
     #[test]
     fn div10_is_exact() {
