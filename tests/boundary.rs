@@ -170,3 +170,30 @@ fn flat_field_and_dark_correction() {
     }
     assert!(correct_frame(&mut frame, Some(&dark[1..]), None, 4095).is_err());
 }
+
+#[test]
+fn wide_edges_beyond_the_search_reach() {
+    // Blur σ 12–15 px: the centroid region reaches past the samples kept near
+    // the coarse estimate, so the finder extends it sample by sample. A
+    // symmetric noiseless edge must still read its centre.
+    for (blur, smoothing) in [(12.0, 4u8), (15.0, 4), (12.0, 16)] {
+        let mut cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+        cfg.smoothing = smoothing;
+        let mut rng = Rng::new(3);
+        let mut frame = vec![0u16; 1024];
+        for phase in 0..5 {
+            let centre = 500.0 + phase as f64 * 0.2;
+            edge(
+                centre,
+                blur,
+                0.0,
+                EdgeDirection::DarkToBright,
+                &mut rng,
+                &mut frame,
+            );
+            let b = find_boundary(&frame, &cfg).expect("wide edge found");
+            let e = b.position as f64 / SUBPIXEL as f64 - centre;
+            assert!(e.abs() < 0.01, "blur {blur} w {smoothing}: error {e}");
+        }
+    }
+}

@@ -12,10 +12,12 @@
 //!    second edge of the opposite sign (a bubble, a smear on the prism) shows up
 //!    there without a second pass.
 //! 2. Around the peak only (a bounded window, not the frame), the step
-//!    `G[i] = Σ p[i+w..i+2w] − Σ p[i..i+w]` (smoothing `w`) is computed by a
-//!    running update, smoothed once more by the same box, and the sub-pixel
-//!    position is the centroid of `G − 0.3·G_peak` over the contiguous region where it is
-//!    positive, integrating the piecewise-linear interpolant (partial segments at
+//!    `G[i] = Σ p[i+w..i+2w] − Σ p[i..i+w]` (smoothing `w`), smoothed once more
+//!    by the same box, `H[j] = Σ G[j..j+w]`, is computed for the samples near
+//!    the coarse estimate by its third difference (four pixel reads per
+//!    sample, further out only where a wide edge needs it), and the sub-pixel
+//!    position is the centroid of `H − 0.3·H_peak` over the contiguous region
+//!    where it is positive, integrating the piecewise-linear interpolant (partial segments at
 //!    both ends included) so that the centroid moves smoothly with the edge: the
 //!    position-dependent bias stays near 0.002 px on noiseless edges. The 0.3
 //!    threshold trades noise (lower is quieter) against the pull of the Fresnel
@@ -24,11 +26,15 @@
 //!    contrast, a noise estimate (from second differences, blind to slow
 //!    vignetting slopes) and the saturation check.
 //!
-//! The per-pixel work is a load and an add; no heap, no floating point. On a
-//! Cortex-M0 (`thumbv6m-none-eabi`, rustc 1.95, opt-level 3, LTO; QEMU
-//! `microbit` with `-icount`, counted through SysTick) a frame costs about
-//! 5.1 instructions per pixel plus about 15 800 for the refinement around the
-//! boundary: about 26 000 instructions for 2048 pixels. The centroid sits at the steepest part of the edge, which
+//! The per-pixel work is a load and an add; no heap, no floating point, and
+//! 32-bit arithmetic but for one 64-bit division per frame (the Cortex-M0 has
+//! no divide instruction: each division is a library call of about 140
+//! instructions, and a frame needs seven). On a Cortex-M0
+//! (`thumbv6m-none-eabi`, rustc 1.95, the board images' `opt-level = "s"`,
+//! fat LTO; QEMU `microbit` with `-icount`, counted through SysTick; items
+//! `boundary finder` in `examples/boards/kit`) a frame costs 5.0 instructions
+//! per pixel plus about 5 200 per frame (refinement, plateaus, checks): about
+//! 10 300 for 1024 pixels, 840 bytes of stack. The centroid sits at the steepest part of the edge, which
 //! for a Fresnel-shaped edge lies a fixed fraction of the blur width beside the
 //! true critical angle; the instrument's calibration against standards removes
 //! that offset along with the other geometry errors.
@@ -222,56 +228,73 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     let centre = BLOCK * coarse.main_at + BLOCK;
     let k = centre.saturating_sub((3 * w).div_ceil(2)).min(last);
 
-    // Steps around the peak, sign-adjusted so the boundary's step is positive.
+    // The twice-smoothed step H[j] = Σ G[j..j+w] (G smoothed once more by the
+    // same box: a derivative kernel of two tents, so that the peak turns round
+    // and its sampled height, and with it the threshold below, hardly depends
+    // on where the edge falls within a pixel), sign-adjusted so that the
+    // boundary's step is positive. It is usable on lo..=hi (H[hi] needs the last
+    // step G); the walk below may not pass those ends.
     let lo = k.saturating_sub(WINDOW);
-    let hi = (k + WINDOW).min(last);
-    let mut steps = [0i32; 2 * WINDOW + 1];
-    let mut g = step_at(frame, lo, w);
-    for (j, slot) in (lo..=hi).zip(steps.iter_mut()) {
-        *slot = sign * g;
-        g += step_update(frame, j, w);
-    }
-    // Smooth the steps once more with the same box (a derivative kernel of two
-    // tents): the peak turns round, so its sampled height, and with it the
-    // threshold below, hardly depends on where the edge falls within a pixel.
-    let hi = hi.saturating_sub(w - 1).max(lo);
-    let mut run: i32 = steps.iter().take(w).sum();
-    for j in 0..=(hi - lo) {
-        let old = steps.get(j).copied().unwrap_or(0);
-        let new = steps.get(j + w).copied().unwrap_or(0);
-        if let Some(slot) = steps.get_mut(j) {
-            *slot = run;
-        }
-        run += new - old;
-    }
-    let step = |j: usize| steps.get(j.wrapping_sub(lo)).copied().unwrap_or(0);
-    // The highest twice-smoothed step within a block and a smoothing width of
-    // the coarse estimate.
+    let hi = (k + WINDOW).min(last).saturating_sub(w - 1).max(lo);
+    // H near the coarse estimate (the peak search and, for all but very wide
+    // edges, the whole centroid region), four pixel reads per sample; further
+    // out directly (only edges wider than the search reach get there).
     let reach = w + 2 * BLOCK;
-    let mut k = k.clamp(lo, hi);
-    for j in k.saturating_sub(reach).max(lo)..=(k + reach).min(hi) {
-        if step(j) > step(k) {
-            k = j;
+    let k = k.clamp(lo, hi);
+    let first = k.saturating_sub(reach + 1).max(lo);
+    let end = (k + reach + 1).min(hi);
+    let mut near = [0i32; NEAR];
+    let near = near.get_mut(..=end - first).unwrap_or(&mut []);
+    if sign > 0 {
+        fill_steps::<P, true>(frame, first, w, near);
+    } else {
+        fill_steps::<P, false>(frame, first, w, near);
+    }
+    let near: &[i32] = near;
+    let step = |j: usize| match near.get(j.wrapping_sub(first)) {
+        Some(&h) => h,
+        None if (lo..=hi).contains(&j) => sign * step_and_slope(frame, j, w).0,
+        None => 0,
+    };
+    // The highest twice-smoothed step within a block and a smoothing width of
+    // the coarse estimate (the first one, or the estimate itself, on ties).
+    let (mut best, mut highest) = (k, step(k));
+    let from = k.saturating_sub(reach).max(lo);
+    let range = near
+        .get(from - first..=(k + reach).min(hi) - first)
+        .unwrap_or(&[]);
+    for (j, &h) in (from..).zip(range) {
+        if h > highest {
+            (best, highest) = (j, h);
         }
     }
+    let k = best;
     // Threshold at 0.3 of the peak's height interpolated by a parabola through the
     // three highest samples, which does not depend on the sampling phase.
     let peak = step(k);
-    let (before, after) = (i64::from(step(k.wrapping_sub(1))), i64::from(step(k + 1)));
-    let curvature = 2 * i64::from(peak) - before - after;
-    let rise = if curvature > 0 {
-        ((after - before).pow(2) / (8 * curvature)).min(i64::from(peak))
-    } else {
-        0
-    };
-    let threshold =
-        i32::try_from((i64::from(peak) + rise) * THRESHOLD_NUM / THRESHOLD_DEN).unwrap_or(peak / 2);
-    let mut jl = k;
-    while jl > lo && step(jl - 1) > threshold {
+    let (before, after) = (step(k.wrapping_sub(1)), step(k + 1));
+    let threshold = centroid_threshold(peak, before, after);
+    // Down to the threshold on both sides: on the stored samples, then (edges
+    // wider than the search reach) sample by sample up to the window's ends.
+    let above = |h: &&i32| **h > threshold;
+    let at = k - first;
+    let mut jl = k - near
+        .get(..at)
+        .unwrap_or(&[])
+        .iter()
+        .rev()
+        .take_while(above)
+        .count();
+    while jl <= first && jl > lo && step(jl - 1) > threshold {
         jl -= 1;
     }
-    let mut jr = k;
-    while jr < hi && step(jr + 1) > threshold {
+    let mut jr = k + near
+        .get(at + 1..)
+        .unwrap_or(&[])
+        .iter()
+        .take_while(above)
+        .count();
+    while jr >= end && jr < hi && step(jr + 1) > threshold {
         jr += 1;
     }
     if jl == 0 || jr + w > last {
@@ -281,14 +304,18 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         // An edge wider than the window: too blurred to measure.
         return Err(BoundaryFault::LowContrast.into());
     }
-    let (num, den) = centroid_sums(|j| i64::from(step(j) - threshold), jl, jr);
-    if den <= 0 {
-        return Err(BoundaryFault::NoBoundary.into());
+    // The samples jl − 1 ..= jr + 1: stored ones, or gathered for a wide edge.
+    let top = peak - threshold;
+    let centroid = match near.get(jl - 1 - first.min(jl - 1)..=jr + 1 - first) {
+        Some(stored) if jl > first => centroid_q16(stored.iter().copied(), threshold, top),
+        _ => centroid_q16((jl - 1..=jr + 1).map(step), threshold, top),
     }
-    let centroid = (num + den / 2).div_euclid(den) + jl as i64 * i64::from(SUBPIXEL);
+    .ok_or(BoundaryFault::NoBoundary)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
     // moved by (w − 1)/2 by the second box.
-    let position = centroid + i64::from(3 * w32 - 2) * i64::from(SUBPIXEL / 2);
+    let position = centroid
+        + jl as i64 * i64::from(SUBPIXEL)
+        + i64::from(3 * w32 - 2) * i64::from(SUBPIXEL / 2);
     let position = i32::try_from(position).map_err(|_| Error::Overflow)?;
 
     // Plateaus beside the transition (pixels jl ..= jr + 3w − 2 took part).
@@ -301,7 +328,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         .get(left_start..right_end)
         .ok_or(BoundaryFault::AtArrayEnd)?;
     let saturation = i32::from(cfg.saturation_level);
-    if used.iter().any(|&v| v.into() >= saturation) {
+    if brightest(used) >= saturation {
         return Err(BoundaryFault::Saturated.into());
     }
     let left = plateau(frame.get(left_start..left_end).unwrap_or(&[]));
@@ -313,26 +340,35 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     };
     let contrast = bright - dark;
     // σ ≈ 0.5117 · mean |second difference| for white noise (√π / √12).
-    let dd_count = i64::from(left.dd_count + right.dd_count).max(1);
-    let noise_q8 = ((left.dd_sum + right.dd_sum) * 131 + dd_count / 2) / dd_count;
+    let dd_count = (left.dd_count + right.dd_count).max(1);
+    let noise_q8 = mul_div(left.dd_sum + right.dd_sum, 131, dd_count, dd_count / 2);
     // A step against the expected direction, larger than the configured share
     // of the boundary's step and clear of the noise (eight standard deviations
     // of a block step, σ·√8; eight because σ comes from a few dozen pixels and
     // the largest noise step of a 4096-pixel frame reaches about 4.5), is a
     // second boundary.
-    let opposite = i64::from(opposite);
-    let noise_floor_sq = 64 * noise_q8 * noise_q8 * 2 * i64::from(BLOCK32);
-    if opposite * 100 > i64::from(main) * i64::from(cfg.opposite_percent)
-        && opposite * opposite * 65536 > noise_floor_sq
+    // (Eight σ·√8 in 1/256 count squared is 1024·noise_q8²; against opposite²·65536
+    // that is 8·opposite > noise_q8, both sides non-negative.)
+    // Block steps stay below 8·65535 < 2^19: the products fit i32.
+    if opposite.saturating_mul(100) > main.saturating_mul(i32::from(cfg.opposite_percent))
+        && u32::try_from(opposite).is_ok_and(|o| o.saturating_mul(8) > noise_q8)
     {
         return Err(BoundaryFault::MultipleBoundaries.into());
     }
-    if contrast < i32::from(cfg.min_contrast) || i64::from(contrast) * 256 < 5 * noise_q8 {
+    // (Means of at most 16-bit pixels: contrast·256 < 2^24.)
+    if contrast < i32::from(cfg.min_contrast)
+        || contrast.unsigned_abs() * 256 < noise_q8.saturating_mul(5)
+    {
         return Err(BoundaryFault::LowContrast.into());
     }
     // Twice-smoothed steps peak at w²·C for a perfect step, at w²·(steepest
     // slope) for a wide edge.
-    let edge_width_q8 = i64::from(contrast) * i64::from(w32 * w32) * 256 / i64::from(peak.max(1));
+    let edge_width_q8 = mul_div(
+        contrast.unsigned_abs(),
+        (w * w * 256) as u32,
+        peak.max(1).unsigned_abs(),
+        0,
+    );
     // Standard uncertainty of the centroid: 2.2 × (noise / contrast) × edge
     // width, fitted on synthetic erf edges with smoothing 4 (tests/boundary.rs:
     // within 20 % of the RMS error measured). On the long-tailed Fresnel edge of
@@ -344,45 +380,156 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         position,
         dark_level: clamp_u16(dark),
         bright_level: clamp_u16(bright),
-        noise_q8: u32::try_from(noise_q8).unwrap_or(u32::MAX),
-        edge_width_q8: u32::try_from(edge_width_q8).unwrap_or(u32::MAX),
+        noise_q8,
+        edge_width_q8,
         uncertainty,
     })
 }
 
-/// Area (×6) and first moment (×6, positions in 1/65536 step from `jl`) of the
-/// part above zero of the piecewise-linear curve through `v(j)`, for `v > 0` on
-/// `jl..=jr` and `v ≤ 0` just outside. Integrating the interpolant, with the
-/// partial segments at both ends, makes the centroid move smoothly with the edge
-/// instead of jumping as samples cross the threshold. Fits i64: steps stay below
-/// 2^25 and `jr − jl` below 2·WINDOW.
-fn centroid_sums(v: impl Fn(usize) -> i64, jl: usize, jr: usize) -> (i64, i64) {
-    const ONE: i64 = SUBPIXEL as i64;
-    let (mut moment, mut area) = (0i64, 0i64);
-    for j in jl..jr {
-        let (a, b) = (v(j), v(j + 1));
-        let x = (j - jl) as i64;
-        area += 3 * (a + b);
-        moment += (3 * x * (a + b) + a + 2 * b) * ONE;
+/// Threshold of the centroid: 0.3 of the peak height `peak + (after − before)² /
+/// (8·curvature)` of the parabola through the three highest samples (the rise
+/// at most `peak`). In 32 bits where the samples allow (12-bit frames: steps
+/// below 2^16, so the square below 2^32), else 64.
+fn centroid_threshold(peak: i32, before: i32, after: i32) -> i32 {
+    // Steps stay below 2^25 in magnitude: curvature and spread fit i32.
+    let curvature = 2 * peak - before - after;
+    let spread = (after - before).unsigned_abs();
+    let rise = if curvature > 0 {
+        let den = curvature.unsigned_abs().saturating_mul(8);
+        // (`checked_mul` would cost a 64-bit multiplication on the M0.)
+        let q = if spread < 1 << 16 {
+            (spread * spread) / den.max(1)
+        } else {
+            u32::try_from(u64::from(spread).pow(2) / u64::from(den.max(1))).unwrap_or(u32::MAX)
+        };
+        i64::from(q).min(i64::from(peak))
+    } else {
+        0
+    };
+    let lifted = i64::from(peak) + rise;
+    match u32::try_from(lifted) {
+        // Peaks stay below 2^25, so 3·lifted fits.
+        Ok(x) if x < 1 << 29 => i32::try_from(div10(3 * x)).unwrap_or(peak / 2),
+        _ => i32::try_from(lifted * THRESHOLD_NUM / THRESHOLD_DEN).unwrap_or(peak / 2),
     }
-    // Left end: zero crossing a length L = b / (b − a) before jl (l = L in Q16).
-    let (a, b) = (v(jl.wrapping_sub(1)).min(0), v(jl));
-    let l = b * ONE / (b - a).max(1);
-    area += 3 * b * l / ONE;
-    moment -= b * l / ONE * l;
-    // Right end: zero crossing L = a / (a − b) after jr.
-    let (a, b) = (v(jr), v(jr + 1).min(0));
-    let l = a * ONE / (a - b).max(1);
-    let x = (jr - jl) as i64;
-    area += 3 * a * l / ONE;
-    moment += 3 * a * l * x + a * l / ONE * l;
-    (moment, area)
+}
+
+/// `n / 10` with shifts and adds: the Cortex-M0 has no divide instruction
+/// (Hacker's Delight, `divu10`; exact for every `u32`).
+fn div10(n: u32) -> u32 {
+    let mut q = (n >> 1) + (n >> 2);
+    q += q >> 4;
+    q += q >> 8;
+    q += q >> 16;
+    q >>= 3;
+    let r = n - q * 10;
+    q + u32::from(r > 9)
+}
+
+/// Centroid, in 1/65536 step from the second sample, of the part above
+/// `threshold` of the piecewise-linear curve through `steps` (at least three),
+/// which are above it but for the first and the last; `None` for an empty area. Integrating
+/// the interpolant, with the partial segments at both ends, makes the centroid
+/// move smoothly with the edge instead of jumping as samples cross the
+/// threshold.
+///
+/// 32-bit arithmetic but for the last few products and the one division: the
+/// values above the threshold are shifted below 2^16 (no shift for `top` <
+/// 2^16, i.e. 12-bit frames with smoothing 4; values above the peak, possible
+/// only beyond the search reach, are clamped), and at most 2·WINDOW + 1 = 97
+/// samples take part, so the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below
+/// 97·96/2·2^16 < 2^29 and the first moment (×6) below 2^31. The end segments'
+/// zero crossings `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
+fn centroid_q16(mut steps: impl Iterator<Item = i32>, threshold: i32, top: i32) -> Option<i64> {
+    const ONE: i64 = SUBPIXEL as i64;
+    let shift = 16u32.saturating_sub(u32::try_from(top).ok()?.leading_zeros());
+    let value = |h: i32| ((h - threshold) >> shift).min(0xFFFF);
+    // Interior: area×6 = 6 Σ v − 3 (v_0 + v_L), moment×6 = 6 Σ i·v_i + v_0 −
+    // (3L + 1) v_L, with i counted from the first sample above the threshold
+    // and L the last i; Σ i·v_i = (L + 1) Σ v − Σ of the running sums. One pass:
+    // a sample is inside once another follows it.
+    let outside_left = steps.next()?;
+    let mut pending = steps.next()?;
+    let v0 = value(pending);
+    let (mut sum, mut running, mut count, mut vl) = (0i32, 0i32, 0i32, v0);
+    for h in steps {
+        vl = value(pending);
+        sum += vl;
+        running += sum;
+        count += 1;
+        pending = h;
+    }
+    let outside_right = pending;
+    let last = count.checked_sub(1)?;
+    let first_moment = (last + 1) * sum - running;
+    let mut area = i64::from(6 * sum - 3 * (v0 + vl));
+    let mut moment = i64::from(6 * first_moment + v0 - (3 * last + 1) * vl) * ONE;
+    // End segments: the zero crossing a length L = b / (b − a) beyond the last
+    // positive sample b (next sample a ≤ 0); a triangle of area b·L/2 and first
+    // moment b·L²/6 about that sample. Returns (b·L in Q16, area×6, moment×6 in Q16).
+    let end = |b: i32, a: i32| -> (u32, i64, i64) {
+        let (b, a) = (b.max(0).unsigned_abs(), a.min(0).unsigned_abs());
+        let l = (b << 16) / b.saturating_add(a).max(1);
+        let bl = b * l;
+        // 3·b·L / 2^16 exactly, in halves: 3·(b·L mod 2^16) < 2^18.
+        let area = 3 * (bl >> 16) + ((3 * (bl & 0xFFFF)) >> 16);
+        (bl, i64::from(area), i64::from((bl >> 16) * l))
+    };
+    let (_, left_area, left_moment) = end(v0, value(outside_left));
+    let (right_bl, right_area, right_moment) = end(vl, value(outside_right));
+    area += left_area + right_area;
+    // 3·b·L·x: below 3 · 2^32 · 96, as a sum of two 32-bit products.
+    let right_lever = (i64::from((right_bl >> 16) * (3 * last.unsigned_abs())) << 16)
+        + i64::from((right_bl & 0xFFFF) * (3 * last.unsigned_abs()));
+    moment += right_moment - left_moment + right_lever;
+    if area <= 0 {
+        return None;
+    }
+    Some((moment + area / 2).div_euclid(area))
 }
 
 /// `2.2 · σ / C · width` in 1/65536 px, integer only.
-fn uncertainty_q16(noise_q8: i64, contrast: i32, edge_width_q8: i64) -> i32 {
-    let u = noise_q8 * edge_width_q8.max(256) * 22 / (10 * i64::from(contrast.max(1)));
+fn uncertainty_q16(noise_q8: u32, contrast: i32, edge_width_q8: u32) -> i32 {
+    // Contrast at most 65535: 10·contrast fits.
+    let den = contrast.max(1).unsigned_abs().saturating_mul(10);
+    let width = edge_width_q8.max(256);
+    // 22·noise < 2^21 and width < 2^11 (noise below 372 counts, edges narrower
+    // than 8 px): the product fits 32 bits.
+    let u = if noise_q8 < 1 << 16 && width < 1 << 11 {
+        (22 * noise_q8 * width) / den.max(1)
+    } else {
+        let q = (u64::from(noise_q8) * u64::from(width)).saturating_mul(22) / u64::from(den.max(1));
+        u32::try_from(q).unwrap_or(u32::MAX)
+    };
     i32::try_from(u).unwrap_or(i32::MAX)
+}
+
+/// `(a · b + bias) / den` (`den` 0 counts as 1), saturating at `u32::MAX`: in
+/// 32 bits when the product fits (the usual case), else 64. The Cortex-M0 has
+/// no divide instruction, and its 64-bit division routine costs several times
+/// the 32-bit one.
+fn mul_div(a: u32, b: u32, den: u32, bias: u32) -> u32 {
+    let den = den.max(1);
+    // Factors and bias below 2^16: no overflow (`checked_mul`
+    // would cost a 64-bit multiplication on the M0).
+    if a < 1 << 16 && b < 1 << 16 && bias < 1 << 16 {
+        (a * b + bias) / den
+    } else {
+        let q = (u64::from(a) * u64::from(b) + u64::from(bias)) / u64::from(den);
+        u32::try_from(q).unwrap_or(u32::MAX)
+    }
+}
+
+/// Largest pixel of a slice, four at a time (a load and a compare per pixel).
+fn brightest<P: Copy + Into<i32>>(pixels: &[P]) -> i32 {
+    let mut quads = pixels.chunks_exact(4);
+    let mut top = i32::MIN;
+    for q in &mut quads {
+        if let [a, b, c, d] = *q {
+            top = top.max(a.into().max(b.into()).max(c.into().max(d.into())));
+        }
+    }
+    quads.remainder().iter().fold(top, |t, &v| t.max(v.into()))
 }
 
 fn clamp_u16(x: i32) -> u16 {
@@ -404,13 +551,20 @@ struct Coarse {
 /// The single pass over the frame: sums of 8-pixel blocks, and the difference
 /// of neighbouring blocks (a box-smoothed step), keeping the largest step each
 /// way. Per pixel it is a load and an add; per block a subtraction and two
-/// compares. On `thumbv6m-none-eabi` (rustc 1.95, opt-level 3, LTO) the loop
-/// compiles to 39 instructions per block on the usual path (no new extreme):
-/// about 4.9 per pixel in the assembly, 5.1 measured (see the module docs).
+/// compares. On `thumbv6m-none-eabi` (rustc 1.95, opt-level "s", fat LTO) it
+/// measures 5.0 instructions per pixel (see the module docs).
 fn coarse_pass<P: Copy + Into<i32>, const RISING: bool>(frame: &[P]) -> Coarse {
-    let mut blocks = frame
-        .chunks_exact(BLOCK)
-        .map(|c| c.iter().fold(0i32, |acc, &v| acc + v.into()));
+    // Eight loads and adds written out: a loop would cost a compare and a
+    // branch per pixel more on cores that do not unroll it (opt-level "s").
+    let sum = |c: &[P; BLOCK]| -> i32 {
+        let [a, b, c, d, e, f, g, h] = *c;
+        (a.into() + b.into())
+            + (c.into() + d.into())
+            + (e.into() + f.into())
+            + (g.into() + h.into())
+    };
+    let (chunks, _) = frame.as_chunks::<BLOCK>();
+    let mut blocks = chunks.iter().map(sum);
     let mut previous = blocks.next().unwrap_or(0);
     let (mut main, mut main_at, mut least) = (i32::MIN, 0usize, i32::MAX);
     for (b, sum) in blocks.enumerate() {
@@ -433,47 +587,95 @@ fn coarse_pass<P: Copy + Into<i32>, const RISING: bool>(frame: &[P]) -> Coarse {
     }
 }
 
-/// `G[i]` computed directly.
-fn step_at<P: Copy + Into<i32>>(frame: &[P], i: usize, w: usize) -> i32 {
-    let sum = |a: usize| -> i32 {
-        frame
-            .get(a..a + w)
-            .unwrap_or(&[])
-            .iter()
-            .map(|&v| v.into())
-            .sum()
-    };
-    sum(i + w) - sum(i)
+/// Samples of the twice-smoothed step kept near the coarse estimate: the
+/// search reach (w + 2 blocks) and one more on each side.
+const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
+
+/// `(H[j], D[j])` computed directly, from running box sums `S(i) = Σ p[i..i+w]`:
+/// `H[j] = Σ_{m<w} (S(j+w+m) − S(j+m))` and `D[j] = G[j+w] − G[j] = S(j+2w) −
+/// 2 S(j+w) + S(j)` (`D` needs one pixel more than `H`; past the frame it is
+/// not used).
+fn step_and_slope<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> (i32, i32) {
+    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2; the last of D's may
+    // be missing (then read as 0, and D is not used).
+    let window = frame.get(j..).unwrap_or(&[]);
+    let leaving = window.get(..window.len().min(2 * w)).unwrap_or(&[]);
+    let entering = window.get(w..window.len().min(3 * w)).unwrap_or(&[]);
+    let s0: i32 = leaving.iter().take(w).map(|&v| v.into()).sum();
+    let (mut s, mut lower, mut upper, mut middle) = (s0, 0, 0, s0);
+    let (first_half, second_half) = leaving.split_at(leaving.len().min(w));
+    for (&out, &inn) in first_half.iter().zip(entering) {
+        lower += s;
+        s += inn.into() - out.into();
+        middle = s;
+    }
+    let later = entering.get(w..).unwrap_or(&[]);
+    for (m, &out) in second_half.iter().enumerate() {
+        upper += s;
+        s += later.get(m).map_or(0, |&v| v.into()) - out.into();
+    }
+    (upper - lower, s - 2 * middle + s0)
 }
 
-/// `G[i+1] − G[i]`.
-fn step_update<P: Copy + Into<i32>>(frame: &[P], i: usize, w: usize) -> i32 {
-    let px = |k: usize| frame.get(k).map_or(0, |&v| v.into());
-    px(i + 2 * w) - 2 * px(i + w) + px(i)
+/// `H[first + i]` (sign-adjusted: negated unless `RISING`) into `out[i]`, by
+/// the third difference of the pixels: `H[j+1] − H[j] = G[j+w] − G[j] =: D[j]`
+/// and `D[j+1] − D[j] = p[j+3w] − 3 p[j+2w] + 3 p[j+w] − p[j] =: T[j]`, four
+/// reads per sample. `out` may reach `H[n − 3w + 1]`, whose last update needs
+/// `T[n − 3w − 1]`, the last one the frame has. Bounds: |H| < 16·16·65535 <
+/// 2^24 and |D| < 2^21 for any `u16` frame, far inside `i32`.
+fn fill_steps<P: Copy + Into<i32>, const RISING: bool>(
+    frame: &[P],
+    first: usize,
+    w: usize,
+    out: &mut [i32],
+) {
+    let (h, d) = step_and_slope(frame, first, w);
+    let (mut h, mut d) = if RISING { (h, d) } else { (-h, -d) };
+    let (head, rest) = out.split_at_mut(out.len().min(2));
+    for slot in head {
+        *slot = h;
+        h += d;
+    }
+    h -= d;
+    let taps = frame.get(first..).unwrap_or(&[]).windows(3 * w + 1);
+    for (slot, x) in rest.iter_mut().zip(taps) {
+        let tap = |i: usize| x.get(i).map_or(0, |&v| v.into());
+        let third = tap(3 * w) - tap(0) - 3 * (tap(2 * w) - tap(w));
+        d += if RISING { third } else { -third };
+        h += d;
+        *slot = h;
+    }
 }
 
 struct Plateau {
     mean: i32,
-    dd_sum: i64,
-    dd_count: i32,
+    dd_sum: u32,
+    dd_count: u32,
 }
 
+/// Mean level and sum of |second differences| of a plateau of at most 64
+/// pixels: sums below 64·65535 < 2^22 (in magnitude, for any `i16` or `u16`
+/// pixel type) and 62·4·65535 < 2^24, 32 bits suffice.
 fn plateau<P: Copy + Into<i32>>(pixels: &[P]) -> Plateau {
-    let n = pixels.len().max(1) as i64;
-    let sum: i64 = pixels.iter().map(|&v| i64::from(v.into())).sum();
-    let mut dd_sum = 0i64;
-    let mut dd_count = 0i32;
-    for ((&a, &b), &c) in pixels
-        .iter()
-        .zip(pixels.get(1..).unwrap_or(&[]))
-        .zip(pixels.get(2..).unwrap_or(&[]))
-    {
-        let (a, b, c): (i32, i32, i32) = (a.into(), b.into(), c.into());
-        dd_sum += i64::from((a - 2 * b + c).abs());
-        dd_count += 1;
+    let n = i32::try_from(pixels.len()).unwrap_or(i32::MAX).max(1);
+    let (head, tail) = pixels.split_at(pixels.len().min(2));
+    let mut pair = head.iter().map(|&v| v.into());
+    let (mut a, mut b): (i32, i32) = (pair.next().unwrap_or(0), pair.next().unwrap_or(0));
+    let (mut sum, mut dd_sum) = (a + b, 0u32);
+    for &c in tail {
+        let c: i32 = c.into();
+        sum += c;
+        dd_sum += (a - 2 * b + c).unsigned_abs();
+        (a, b) = (b, c);
     }
+    let dd_count = u32::try_from(tail.len()).unwrap_or(0);
+    // A power-of-two plateau (the default 16) needs no division.
+    let mean = match u32::try_from(sum + n / 2) {
+        Ok(s) if n.unsigned_abs().is_power_of_two() => (s >> n.trailing_zeros()) as i32,
+        _ => (sum + n / 2) / n,
+    };
     Plateau {
-        mean: i32::try_from((sum + n / 2) / n).unwrap_or(i32::MAX),
+        mean,
         dd_sum,
         dd_count,
     }
@@ -559,4 +761,61 @@ pub fn flat_field_gains(
         *g = u16::try_from(q).map_err(|_| Error::OutOfRange(Quantity::SensorFrame))?;
     }
     u16::try_from(mean).map_err(|_| Error::Overflow)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{div10, fill_steps, step_and_slope};
+
+    /// `G[i]` and `H[j]` straight from their definitions.
+    fn g(p: &[u16], i: usize, w: usize) -> i32 {
+        let sum = |a: usize| p[a..a + w].iter().map(|&v| i32::from(v)).sum::<i32>();
+        sum(i + w) - sum(i)
+    }
+    fn h(p: &[u16], j: usize, w: usize) -> i32 {
+        (j..j + w).map(|i| g(p, i, w)).sum()
+    }
+
+    #[test]
+    fn steps_match_their_definition_up_to_the_last_one() {
+        let mut x = 0x2545_F491u32;
+        let p: [u16; 80] = core::array::from_fn(|_| {
+            x ^= x << 13;
+            x ^= x >> 17;
+            x ^= x << 5;
+            (x % 65536) as u16
+        });
+        for w in 1..=16 {
+            let hi = p.len() - 3 * w + 1;
+            for j in 0..=hi {
+                let (hj, dj) = step_and_slope(&p, j, w);
+                assert_eq!(hj, h(&p, j, w), "H w {w} j {j}");
+                if j < hi {
+                    assert_eq!(dj, h(&p, j + 1, w) - hj, "D w {w} j {j}");
+                }
+            }
+            for first in [0, hi / 2, hi.saturating_sub(3)] {
+                let (mut out, mut neg) = ([0i32; 80], [0i32; 80]);
+                let (out, neg) = (&mut out[..=hi - first], &mut neg[..=hi - first]);
+                fill_steps::<u16, true>(&p, first, w, out);
+                fill_steps::<u16, false>(&p, first, w, neg);
+                for (i, (&a, &b)) in out.iter().zip(neg.iter()).enumerate() {
+                    assert_eq!(a, h(&p, first + i, w), "fill w {w} j {}", first + i);
+                    assert_eq!(b, -a);
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn div10_is_exact() {
+        // Every value near the quotient steps at the low end, then a stride over
+        // the whole range, and the top.
+        let low = 0..100_000u32;
+        let stride = (0..=u32::MAX / 65_521).map(|k| k * 65_521);
+        let top = u32::MAX - 1000..=u32::MAX;
+        for n in low.chain(stride).chain(top) {
+            assert_eq!(div10(n), n / 10, "{n}");
+        }
+    }
 }
