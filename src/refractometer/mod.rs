@@ -4,6 +4,13 @@
 //! The chain is built from small parts joined by the traits below, so that a
 //! firmware picks the sample model (sucrose, water, a user dn/dT) and the scale
 //! (%Brix, salinity, ...) without touching the optics.
+//!
+//! Measured closed-loop figures (bias, noise at three SNR levels, sub-pixel
+//! precision, calibration-record robustness) are in `docs/refractometer.md`.
+//!
+//! Caution: readings used for clinical decisions, battery acid or coolant freeze
+//! protection need an instrument validated under the rules that apply where it is
+//! used; follow local codes and licensed practice.
 
 pub mod wavelength;
 
