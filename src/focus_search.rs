@@ -80,7 +80,6 @@ use crate::error::{Error, Quantity};
 use crate::focus::FocusSweepPlan;
 use crate::lit;
 use crate::scalar::Scalar;
-use core::mem;
 use heapless::Vec;
 
 /// Most samples one scan holds; bounds the coarse and fine scans' lengths.
@@ -448,12 +447,15 @@ struct Target {
     from_hint: bool,
 }
 
-#[derive(Clone, Debug)]
+/// Where the search is. The scan of `PreMove` and `Scanning` lives in
+/// [`FocusSearch`]'s `scan`, so that a step never moves its samples (about
+/// 1 KiB) through the stack.
+#[derive(Clone, Copy, Debug)]
 enum Phase {
     Idle,
     /// A backlash pre-move was commanded; its frame's metric is ignored.
-    PreMove(Scan),
-    Scanning(Scan),
+    PreMove,
+    Scanning,
     /// The overtravel below the target was commanded.
     Settle(Target),
     /// The target was commanded; its metric confirms.
@@ -469,6 +471,7 @@ pub struct FocusSearch<S> {
     drop_q16: u32,
     confirm_q16: u32,
     phase: Phase,
+    scan: Scan,
     frames: u16,
     last_command: Option<i32>,
     park_code: i32,
@@ -523,6 +526,13 @@ impl<S: Scalar> FocusSearch<S> {
             drop_q16,
             confirm_q16,
             phase: Phase::Idle,
+            scan: Scan {
+                kind: ScanKind::Coarse,
+                next: 0,
+                end: 0,
+                step: 1,
+                samples: Vec::new(),
+            },
             frames: 0,
             last_command: None,
         })
@@ -576,13 +586,11 @@ impl<S: Scalar> FocusSearch<S> {
     /// returns what to do next. After `Done` or `Failed` it keeps returning
     /// that answer; before any start it starts a full search.
     pub fn feed(&mut self, metric: u64) -> Step {
-        let step = match mem::replace(&mut self.phase, Phase::Idle) {
-            Phase::Finished(step) => {
-                self.phase = Phase::Finished(step);
-                return step;
-            }
+        let step = match self.phase {
+            Phase::Finished(step) => return step,
             Phase::Idle => return self.start(),
             phase => {
+                self.phase = Phase::Idle;
                 self.frames = self.frames.saturating_add(1);
                 self.advance(phase, metric)
             }
@@ -604,12 +612,11 @@ impl<S: Scalar> FocusSearch<S> {
 
     fn advance(&mut self, phase: Phase, metric: u64) -> Step {
         match phase {
-            Phase::PreMove(scan) => {
-                let code = scan.next;
-                self.phase = Phase::Scanning(scan);
-                Step::Move(code)
+            Phase::PreMove => {
+                self.phase = Phase::Scanning;
+                Step::Move(self.scan.next)
             }
-            Phase::Scanning(scan) => self.on_sample(scan, metric),
+            Phase::Scanning => self.on_sample(metric),
             Phase::Settle(target) => {
                 self.phase = Phase::Confirm(target);
                 Step::Move(target.code)
@@ -644,22 +651,20 @@ impl<S: Scalar> FocusSearch<S> {
     /// Starts a scan from `lo` to `hi`, with a pre-move below `lo` unless the lens
     /// is known to be below it already.
     fn begin_scan(&mut self, kind: ScanKind, lo: i32, hi: i32, step: i32) -> Step {
-        let scan = Scan {
-            kind,
-            next: lo,
-            end: hi,
-            step,
-            samples: Vec::new(),
-        };
+        self.scan.kind = kind;
+        self.scan.next = lo;
+        self.scan.end = hi;
+        self.scan.step = step;
+        self.scan.samples.clear();
         let pre = lo
             .saturating_sub(self.config.backlash_margin)
             .max(self.config.code_min);
         let needs_pre = pre < lo && self.last_command.is_none_or(|last| last > pre);
         if needs_pre {
-            self.phase = Phase::PreMove(scan);
+            self.phase = Phase::PreMove;
             Step::Move(pre)
         } else {
-            self.phase = Phase::Scanning(scan);
+            self.phase = Phase::Scanning;
             Step::Move(lo)
         }
     }
@@ -668,14 +673,10 @@ impl<S: Scalar> FocusSearch<S> {
         best >= self.config.min_peak_metric && below(scan.weakest(), self.flat_q16, best)
     }
 
-    fn on_sample(&mut self, mut scan: Scan, metric: u64) -> Step {
-        let full = scan
-            .samples
-            .push(Sample {
-                code: scan.next,
-                metric,
-            })
-            .is_err();
+    fn on_sample(&mut self, metric: u64) -> Step {
+        let code = self.scan.next;
+        let full = self.scan.samples.push(Sample { code, metric }).is_err();
+        let scan = &self.scan;
         let passed_peak = match scan.best() {
             Some((i, best)) => {
                 let after = scan.samples.get(i + 1..).unwrap_or(&[]);
@@ -685,23 +686,24 @@ impl<S: Scalar> FocusSearch<S> {
                         .rev()
                         .take(2)
                         .all(|s| below(s.metric, self.drop_q16, best.metric))
-                    && (scan.kind != ScanKind::Coarse || self.prominent(&scan, best.metric))
+                    && (scan.kind != ScanKind::Coarse || self.prominent(scan, best.metric))
             }
             None => false,
         };
         if !(full || passed_peak || scan.next >= scan.end) {
-            scan.next = scan.next.saturating_add(scan.step).min(scan.end);
-            let code = scan.next;
-            self.phase = Phase::Scanning(scan);
+            let code = scan.next.saturating_add(scan.step).min(scan.end);
+            self.scan.next = code;
+            self.phase = Phase::Scanning;
             return Step::Move(code);
         }
+        let scan = &self.scan;
         let Some((index, best)) = scan.best() else {
             return self.begin_full();
         };
         let c = self.config;
         match scan.kind {
             ScanKind::Coarse => {
-                if !self.prominent(&scan, best.metric) {
+                if !self.prominent(scan, best.metric) {
                     return Step::Failed(Failure {
                         reason: FailureReason::LowContrast,
                         park_code: c.hyperfocal_code,

@@ -479,9 +479,13 @@ fn calibration_survives_power_loss_every_type() {
         survives_power_loss::<I8F24>(),
     ];
     println!("largest reading change across a restore (f64 f32 I32F32 I8F24): {worst:?}");
-    // f64 coefficients round to I32F32's 2.3e-10; the others are exact.
+    // f64 coefficients round to I32F32's 2.3e-10; f32 coefficients of the
+    // three-standard calibration do not all survive the record's I32F32
+    // either, which moves an f32 reading by at most a few ulps (1.2e-7 at
+    // nD 1.4); the fixed-point types are exact.
     assert!(worst[0] < 1e-9);
-    assert_eq!(&worst[1..], &[0.0; 3]);
+    assert!(worst[1] <= 4.0 * 1.2e-7, "f32 {}", worst[1]);
+    assert_eq!(&worst[2..], &[0.0; 2]);
 }
 
 #[test]

@@ -12,8 +12,12 @@
 //! the boundary position's noise (shrinking with the frames averaged), the
 //! temperature sensor's standard uncertainty (through the whole chain: prism
 //! index and sample compensation) and the calibration's standard uncertainty.
-//! Sensitivities come from the chain itself: analytic for the geometry, central
-//! differences for the models behind the traits.
+//! Sensitivities come from the chain itself: analytic for the geometry,
+//! one-sided differences for the models behind the traits (+1e-4 in index,
+//! +0.5 K; the step below at the top of a model's range). Their cost: a reading
+//! runs the dispersion and the sample compensation three times and the prism
+//! and geometry twice, against once each for the value alone (see
+//! `docs/cost.md`, `frame -> %Brix reading` against its parts).
 //!
 //! Number types: f32, f64 and I32F32 run the whole chain from the same code;
 //! the LED wavelength is carried in µm inside (the unit of [`Medium`] and
@@ -462,29 +466,34 @@ where
         let nd20 = check_index(nd20)?;
         let scale_value = self.scale.value_at(nd20)?;
 
-        // Sensitivities: nD20 per index at the LED (central difference), per
-        // pixel (analytic geometry × correction slope × that), per kelvin (the
-        // whole chain, prism included, central difference over ±0.5 K).
+        // Sensitivities: nD20 per index at the LED, per pixel (analytic
+        // geometry × correction slope × that), per kelvin (the whole chain,
+        // prism included). One-sided differences from the reading itself: the
+        // curves are smooth on these steps, and each extra point costs a pass
+        // through the compensation (a table inversion for %Brix-based ones).
         let h = crate::lit!(S, 1e-4);
-        let up = self.to_nd20(index_at_led.add(h)?, t)?.1;
-        let down = self.to_nd20(index_at_led.sub(h)?, t)?.1;
-        let d_led = up.sub(down)?.div(h.mul(S::TWO)?)?;
+        let d_led = match self.to_nd20(index_at_led.add(h)?, t) {
+            Ok((_, up)) => up.sub(nd20)?,
+            // At the top of the compensation's range: the step below.
+            Err(_) => nd20.sub(self.to_nd20(index_at_led.sub(h)?, t)?.1)?,
+        }
+        .div(h)?;
         let d_px = per_px.mul(self.correction.slope(raw)?)?.mul(d_led)?;
         let u_px = S::from_ratio(avg.position_uncertainty, SUBPIXEL)?;
         let term_px = d_px.mul(u_px)?.abs()?;
         // Within 0.5 K of an end of the compensation's range (or of a ragged
-        // table's edge) one side is out of range: a one-sided difference there,
+        // table's edge) the step above is out of range: the step below there,
         // so that a reading the models cover is never refused for its
         // uncertainty.
         let ht = crate::lit!(S, 0.5);
-        let warm = self.chain(avg.position, t.add(ht)?);
-        let cool = self.chain(avg.position, t.sub(ht)?);
-        let per_kelvin = match (warm, cool) {
-            (Ok(w), Ok(c)) => w.sub(c)?,
-            (Ok(w), Err(_)) => w.sub(nd20)?.mul(S::TWO)?,
-            (Err(_), Ok(c)) => nd20.sub(c)?.mul(S::TWO)?,
-            (Err(e), Err(_)) => return Err(e),
-        };
+        let per_kelvin = match self.chain(avg.position, t.add(ht)?) {
+            Ok(w) => w.sub(nd20)?,
+            Err(e) => match self.chain(avg.position, t.sub(ht)?) {
+                Ok(c) => nd20.sub(c)?,
+                Err(_) => return Err(e),
+            },
+        }
+        .mul(S::TWO)?;
         let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
         let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
 

@@ -182,21 +182,29 @@ impl UniformCubicTable {
             .ok_or(Error::OutOfRange(Quantity::Value))
     }
 
-    /// Interpolated `y` at local coordinate `t` (in grid steps) from entry `k0`
-    /// with entries `k0..k0+4`.
-    fn cubic<S: Scalar>(&self, k0: usize, t: S) -> Result<S, Error> {
-        let y0 = self.y(k0)?;
-        let d = |i: usize| -> Result<S, Error> {
-            S::from_ratio(self.y(k0 + i)?.wrapping_sub(y0), self.y_den)
+    /// The cubic through entries `k0..k0+4` in Newton form. The forward
+    /// differences are taken in integers (exact), so a reading costs four
+    /// conversions per segment instead of four per evaluation.
+    fn segment<S: Scalar>(&self, k0: usize) -> Result<Segment<S>, Error> {
+        let y = |i: usize| -> Result<i64, Error> { Ok(i64::from(self.y(k0 + i)?)) };
+        let (y0, y1, y2, y3) = (y(0)?, y(1)?, y(2)?, y(3)?);
+        // Differences of i32 values: |d3| <= 8 * 2^31, no i64 overflow.
+        let d1 = y1 - y0;
+        let d2 = y2 - 2 * y1 + y0;
+        let d3 = y3 - 3 * y2 + 3 * y1 - y0;
+        let over = |num: i64, by: i32| -> Result<S, Error> {
+            let num = i32::try_from(num).map_err(|_| Error::Overflow)?;
+            match self.y_den.checked_mul(by) {
+                Some(den) => S::from_ratio(num, den),
+                None => S::from_ratio(num, self.y_den)?.div(S::from_i32(by)?),
+            }
         };
-        let (t1, t2, t3) = (t.sub(S::ONE)?, t.sub(S::TWO)?, t.sub(crate::lit!(S, 3.0))?);
-        // Lagrange weights of entries 1, 2, 3 on nodes 0, 1, 2, 3 (entry 0's
-        // weight multiplies a zero difference).
-        let w1 = t.mul(t2)?.mul(t3)?.mul(S::HALF)?;
-        let w2 = t.mul(t1)?.mul(t3)?.mul(S::HALF)?.neg()?;
-        let w3 = t.mul(t1)?.mul(t2)?.mul(crate::lit!(S, 1.0 / 6.0))?;
-        let sum = w1.mul(d(1)?)?.add(w2.mul(d(2)?)?)?.add(w3.mul(d(3)?)?)?;
-        S::from_ratio(y0, self.y_den)?.add(sum)
+        Ok(Segment {
+            y0: S::from_ratio(self.y(k0)?, self.y_den)?,
+            a1: over(d1, 1)?,
+            a2: over(d2, 2)?,
+            a3: over(d3, 6)?,
+        })
     }
 
     /// First entry of the four-point stencil for segment `k`.
@@ -237,50 +245,83 @@ impl UniformCubicTable {
         }
         .min(last_segment);
         let k0 = self.stencil(k);
-        self.cubic(k0, u.sub(S::from_i32(k0 as i32)?)?)
+        self.segment(k0)?.value(u.sub(S::from_i32(k0 as i32)?)?)
     }
 
-    /// `x` at `y` (the inverse), by bisection on the same cubic so that both
-    /// directions agree; outside the table [`Error::OutOfRange`] for `q`.
+    /// `x` at `y` (the inverse) on the same cubic, so that both directions
+    /// agree: the segment by comparing entries (the table is monotonic), then
+    /// Newton steps from the straight-line guess inside that segment. Outside
+    /// the table [`Error::OutOfRange`] for `q`.
     pub fn x_at<S: Scalar>(&self, y: S, q: Quantity) -> Result<S, Error> {
         if !self.valid() {
             return Err(Error::OutOfRange(Quantity::Value));
         }
-        let first = S::from_ratio(self.y(0)?, self.y_den)?;
-        let last = S::from_ratio(self.y(self.ys.len() - 1)?, self.y_den)?;
-        let y = y.check_range(q, first, last)?;
-        // Segment whose end values bracket y.
-        let mut k = 0;
-        for i in 0..self.ys.len() - 1 {
-            if S::from_ratio(self.y(i + 1)?, self.y_den)? >= y {
-                k = i;
-                break;
+        let entry = |i: usize| -> Result<S, Error> { S::from_ratio(self.y(i)?, self.y_den) };
+        let last_segment = self.ys.len() - 2;
+        let y = y.check_range(q, entry(0)?, entry(last_segment + 1)?)?;
+        // First segment whose upper entry reaches y, by bisection on entries.
+        let (mut k, mut hi) = (0, last_segment);
+        while k < hi {
+            let mid = k + (hi - k) / 2;
+            if entry(mid + 1)? >= y {
+                hi = mid;
+            } else {
+                k = mid + 1;
             }
         }
         let k0 = self.stencil(k);
-        let mut a = S::from_i32((k - k0) as i32)?;
-        let mut b = a.add(S::ONE)?;
-        for _ in 0..40 {
-            let mid = a.add(b)?.mul(S::HALF)?;
-            if mid <= a || mid >= b {
-                break;
-            }
-            if self.cubic(k0, mid)? < y {
-                a = mid;
-            } else {
-                b = mid;
-            }
-        }
-        let ya = self.cubic(k0, a)?;
-        let yb = self.cubic(k0, b)?;
-        // Final linear step inside the last bracket.
-        let t = if yb > ya {
-            a.add(b.sub(a)?.mul(y.sub(ya)?.div(yb.sub(ya)?)?)?)?
+        let seg = self.segment::<S>(k0)?;
+        let a = S::from_i32(i32::try_from(k - k0).map_err(|_| Error::Overflow)?)?;
+        let b = a.add(S::ONE)?;
+        let (ya, yb) = (seg.value(a)?, seg.value(b)?);
+        let mut t = if yb > ya {
+            a.add(y.sub(ya)?.div(yb.sub(ya)?)?)?.max(a).min(b)
         } else {
             a
         };
+        // The cubic is close to a line on one segment: three Newton steps take
+        // the straight-line guess to the type's resolution.
+        for _ in 0..3 {
+            let slope = seg.slope(t)?;
+            if slope <= S::ZERO {
+                break;
+            }
+            let next = t.sub(seg.value(t)?.sub(y)?.div(slope)?)?.max(a).min(b);
+            if next == t {
+                break;
+            }
+            t = next;
+        }
         let u = t.add(S::from_i32(k0 as i32)?)?;
         let (lo, _) = self.x_range::<S>()?;
         lo.add(u.mul(S::from_ratio(self.step, self.x_den)?)?)
+    }
+}
+
+/// One cubic of a [`UniformCubicTable`] in Newton form,
+/// `p(t) = y0 + t·(a1 + (t−1)·(a2 + (t−2)·a3))`, `t` in grid steps from the
+/// first entry of its stencil.
+#[derive(Clone, Copy, Debug)]
+struct Segment<S> {
+    y0: S,
+    a1: S,
+    a2: S,
+    a3: S,
+}
+
+impl<S: Scalar> Segment<S> {
+    fn value(&self, t: S) -> Result<S, Error> {
+        let q = self.a2.add(t.sub(S::TWO)?.mul(self.a3)?)?;
+        let r = self.a1.add(t.sub(S::ONE)?.mul(q)?)?;
+        self.y0.add(t.mul(r)?)
+    }
+
+    /// dp/dt.
+    fn slope(&self, t: S) -> Result<S, Error> {
+        let t1 = t.sub(S::ONE)?;
+        let q = self.a2.add(t.sub(S::TWO)?.mul(self.a3)?)?;
+        let r = self.a1.add(t1.mul(q)?)?;
+        // r' = q + (t−1)·a3, p' = r + t·r'.
+        r.add(t.mul(q.add(t1.mul(self.a3)?)?)?)
     }
 }

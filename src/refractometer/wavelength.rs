@@ -43,6 +43,14 @@ fn check_led_um<S: Scalar>(l: S) -> Result<S, Error> {
     )
 }
 
+/// Water's `(w_D − 1)/(w_λ − 1)` at 20 °C for a checked LED wavelength, µm.
+fn water_ratio<S: Scalar>(l: S) -> Result<S, Error> {
+    let t = crate::lit!(S, 20.0);
+    let w_led = water::index_air(t, l)?.sub(S::ONE)?;
+    let w_d = water::index_air(t, crate::lit!(S, ND_NM / 1000.0))?.sub(S::ONE)?;
+    w_d.div(w_led)
+}
+
 /// The sample disperses like water (relative refractivity scaled), the default
 /// for aqueous samples.
 ///
@@ -62,12 +70,58 @@ impl WaterLikeDispersion {
     /// [`WavelengthCorrection::to_nd`] with the wavelength in µm (fits I8F24).
     pub fn to_nd_um<S: Scalar>(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         let n = check_index(n)?;
-        let l = check_led_um(wavelength_um)?;
-        let t = crate::lit!(S, 20.0);
-        let w_led = water::index_air(t, l)?.sub(S::ONE)?;
-        let w_d = water::index_air(t, crate::lit!(S, ND_NM / 1000.0))?.sub(S::ONE)?;
+        let ratio = water_ratio(check_led_um(wavelength_um)?)?;
         // nD − 1 = (n − 1) · (w_D − 1)/(w_λ − 1)
-        check_index(n.sub(S::ONE)?.mul(w_d.div(w_led)?)?.add(S::ONE)?)
+        check_index(n.sub(S::ONE)?.mul(ratio)?.add(S::ONE)?)
+    }
+
+    /// The same correction with water's ratio `(w_D − 1)/(w_λ − 1)` worked out
+    /// once for an LED wavelength in µm: an instrument with a fixed LED then
+    /// skips both water evaluations on every reading (the results are the
+    /// bits [`to_nd_um`](Self::to_nd_um) gives). [`Error::OutOfRange`] for a
+    /// wavelength outside 400–800 nm, [`Error::NotFinite`] for NaN or ±inf.
+    ///
+    /// ```
+    /// use embedded_optics::refractometer::WavelengthCorrection;
+    /// use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
+    /// let led = WaterLikeDispersion::at_led(0.590f64).unwrap();
+    /// let n = 1.3712;
+    /// assert_eq!(led.to_nd(n, 0.590), WaterLikeDispersion.to_nd(n, 0.590));
+    /// ```
+    pub fn at_led<S: Scalar>(wavelength_um: S) -> Result<WaterLikeAtLed<S>, Error> {
+        let l = check_led_um(wavelength_um)?;
+        Ok(WaterLikeAtLed {
+            wavelength_um: l,
+            ratio: water_ratio(l)?,
+        })
+    }
+}
+
+/// [`WaterLikeDispersion`] prepared for one LED wavelength (from
+/// [`WaterLikeDispersion::at_led`]). At that wavelength a correction is one
+/// multiplication; at any other it works the ratio out as
+/// [`WaterLikeDispersion`] does.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct WaterLikeAtLed<S> {
+    wavelength_um: S,
+    ratio: S,
+}
+
+impl<S: Scalar> WaterLikeAtLed<S> {
+    /// The LED wavelength it was prepared for, µm.
+    pub fn wavelength_um(&self) -> S {
+        self.wavelength_um
+    }
+}
+
+impl<S: Scalar> WavelengthCorrection<S> for WaterLikeAtLed<S> {
+    fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error> {
+        if wavelength_um != self.wavelength_um {
+            return WaterLikeDispersion.to_nd_um(n, wavelength_um);
+        }
+        let n = check_index(n)?;
+        check_index(n.sub(S::ONE)?.mul(self.ratio)?.add(S::ONE)?)
     }
 }
 

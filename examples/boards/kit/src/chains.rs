@@ -27,7 +27,7 @@ use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::SucroseBrix;
-use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
+use embedded_optics::refractometer::wavelength::{WaterLikeAtLed, WaterLikeDispersion};
 use embedded_optics::{Error, Quantity, Scalar, lit, precomputed_water};
 
 /// Pixels of the line sensor.
@@ -85,14 +85,16 @@ impl<S: Scalar> Medium<S> for TabledWater<S> {
 
 /// The firmware's refractometer.
 pub type Refractometer<S> =
-    Instrument<S, Glass<S>, WaterLikeDispersion, SucroseCompensation, SucroseBrix>;
+    Instrument<S, Glass<S>, WaterLikeAtLed<S>, SucroseCompensation, SucroseBrix>;
 
 /// Builds the refractometer, uncalibrated.
 pub fn refractometer<S: Scalar>() -> Result<Refractometer<S>, Error> {
     Instrument::new(
         &DESCRIPTION,
         prism()?,
-        WaterLikeDispersion,
+        // Water's ratio worked out once for the LED (same bits as
+        // `WaterLikeDispersion`, without two water evaluations per call).
+        WaterLikeDispersion::at_led(S::from_f64(DESCRIPTION.led_wavelength_nm / 1000.0)?)?,
         SucroseCompensation::oiv(),
         SucroseBrix,
     )
