@@ -1,5 +1,5 @@
 //! Sweeps a routine over its working domain in every number type and compares it
-//! with an independent `f64` reference written from the textbook-free closed form
+//! with an independent `f64` reference written from the closed-form relation
 //! (plain `libm` calls, no shared code with the routine under test).
 //!
 //! Each input is first rounded to the type under test and the reference is taken at
