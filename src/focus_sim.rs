@@ -49,46 +49,9 @@ use crate::scalar::Scalar;
 
 const SIM: Quantity = Quantity::SimulationSetting;
 
-/// Seeded pseudo-random generator (SplitMix64), integer only.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct SimRng {
-    state: u64,
-}
-
-impl SimRng {
-    /// A generator from a seed; the same seed gives the same sequence.
-    pub fn new(seed: u64) -> Self {
-        Self { state: seed }
-    }
-
-    /// The next 64 random bits.
-    pub fn next_u64(&mut self) -> u64 {
-        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform integer in `[0, n)` (0 when `n` is 0).
-    pub fn below(&mut self, n: u32) -> u32 {
-        (((self.next_u64() >> 32) * u64::from(n)) >> 32) as u32
-    }
-
-    /// Approximately standard normal, in 2^-16 units: the sum of twelve uniform
-    /// values minus six (Irwin–Hall), within ±6.
-    pub fn normal_q16(&mut self) -> i32 {
-        let mut sum: i64 = 0;
-        for _ in 0..3 {
-            let r = self.next_u64();
-            for k in 0..4 {
-                sum += ((r >> (16 * k)) & 0xFFFF) as i64;
-            }
-        }
-        (sum - 6 * 65_536) as i32
-    }
-}
+/// The crate's one seeded generator (SplitMix64, integer only), under the name
+/// the autofocus simulation has always used.
+pub use crate::refractometer::forward::Rng as SimRng;
 
 /// The camera module: lens, actuator and sensor, plus the metric model.
 #[derive(Clone, Copy, Debug, PartialEq)]

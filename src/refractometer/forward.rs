@@ -19,7 +19,8 @@ use crate::medium::Medium;
 use crate::refractometer::geometry::{GeometryDescription, check_described};
 use crate::scalar::Scalar;
 
-/// A small seeded generator (SplitMix64): reproducible noise on any target.
+/// A small seeded generator (SplitMix64): reproducible noise on any target; the
+/// refractometer's forward model and the autofocus simulation share it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Rng(u64);
@@ -37,6 +38,11 @@ impl Rng {
         z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
         z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
         z ^ (z >> 31)
+    }
+
+    /// Uniform integer in `[0, n)` (0 when `n` is 0).
+    pub fn below(&mut self, n: u32) -> u32 {
+        (((self.next_u64() >> 32) * u64::from(n)) >> 32) as u32
     }
 
     /// Approximately standard normal deviate in 1/65536 (sum of twelve uniforms
