@@ -3,7 +3,7 @@
 //!
 //! | scale | unit | range | source |
 //! |---|---|---|---|
-//! | [`SucroseBrix`] | %Brix | 0–85 | ICUMSA SPS-3 sucrose table (5 %Brix entries, cubic interpolation) |
+//! | [`SucroseBrix`] | %Brix | 0–85 (−0.14 near water, see [`BELOW_WATER_BAND`]) | ICUMSA SPS-3 sucrose table (5 %Brix entries, cubic interpolation) |
 //! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
 //! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
 //! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
@@ -58,20 +58,53 @@ const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SucroseBrix;
 
-/// Readings at most this far below the table's first entry (water, 0 %Brix)
-/// read 0 %Brix: pure water, read within the chain's accuracy (2e-5 nD), shows
-/// 0 %Brix rather than an error. Further below is out of range (a wrong zero).
-const SUCROSE_ZERO_BAND: f64 = 2e-5;
+/// How far below water (0 %Brix) a reading may fall and still be reported,
+/// nD. A water check on a real unit scatters around 1.33299 by its noise and
+/// zero drift; the trade shows that scatter as small negative %Brix (common
+/// practice) instead of refusing the reading, so that a drifting zero is seen.
+/// 2e-4 nD is about 0.14 %Brix: ten times the chain's own error budget, and
+/// still far from any real sample. Further below is out of range (a wrong zero,
+/// or not an aqueous sample).
+pub const BELOW_WATER_BAND: f64 = 2e-4;
+
+/// nD of water at 20 °C, 589.3 nm, relative to air: the table's 0 %Brix entry.
+const WATER_ND: f64 = 1.33299;
+
+/// dnD/d%Brix of the table's cubic at 0 %Brix (the four-point Lagrange
+/// derivative through the first four entries), used on the band below water:
+/// `(−11·y0 + 18·y1 − 9·y2 + 2·y3) / (6·step)`.
+const SLOPE_AT_WATER: f64 = {
+    let y = ICUMSA_SUCROSE.ys;
+    (-11.0 * y[0] as f64 + 18.0 * y[1] as f64 - 9.0 * y[2] as f64 + 2.0 * y[3] as f64)
+        / (6.0 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
+};
 
 impl<S: Scalar> TradeScale<S> for SucroseBrix {
+    /// %Brix at `nd20`; from water down to [`BELOW_WATER_BAND`] below it, the
+    /// table's tangent at 0 %Brix gives a small negative value.
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        let water = lit!(S, 1.33299);
-        if nd20 < water && nd20 >= lit!(S, 1.33299 - SUCROSE_ZERO_BAND) {
-            return Ok(S::ZERO);
+        let water = lit!(S, WATER_ND);
+        if nd20 < water && nd20 >= lit!(S, WATER_ND - BELOW_WATER_BAND) {
+            // ×10⁴ (two steps: 10⁴ does not fit I8F24) before the division:
+            // the slope itself (1.4e-3) is coarse in I8F24.
+            return nd20
+                .sub(water)?
+                .mul(lit!(S, 100.0))?
+                .mul(lit!(S, 100.0))?
+                .div(lit!(S, SLOPE_AT_WATER * 10_000.0));
         }
         ICUMSA_SUCROSE.x_at(nd20, Quantity::RefractiveIndex)
     }
+    /// nD at `value` %Brix; small negative values (down to the band below
+    /// water) map back onto the same tangent, so both directions agree.
     fn nd20_at(&self, value: S) -> Result<S, Error> {
+        if value < S::ZERO && value >= lit!(S, -BELOW_WATER_BAND / SLOPE_AT_WATER) {
+            return value
+                .mul(lit!(S, SLOPE_AT_WATER * 10_000.0))?
+                .mul(lit!(S, 0.01))?
+                .mul(lit!(S, 0.01))?
+                .add(lit!(S, WATER_ND));
+        }
         ICUMSA_SUCROSE.y_at(value, Quantity::ScaleValue)
     }
     fn unit(&self) -> &'static str {
@@ -124,6 +157,9 @@ impl<S: Scalar> TradeScale<S> for Salinity {
 /// Wedmore's relation behind the Chataway table, as given in the Harmonised
 /// Methods of the International Honey Commission (method 1, refractometric
 /// moisture): `W = (−0.2681 − log10(nD − 1)) / 0.002243` (`// from memory`).
+/// `tests/world_cal.rs` checks it against 36 rows of the Commission's moisture
+/// table (13.0–16.4 % and 19.0–22.4 %): at most 0.022 % water apart, which is
+/// the table's own rounding of nD to four decimals.
 /// Crystallised honey must be liquefied first; the table is for nD at 20 °C.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
