@@ -95,6 +95,60 @@ pub const OIV_TABLE_I_5_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable
     ],
 };
 
+/// A second published correction table, for laboratory refractometers read in
+/// %Brix on juices: "Table A.1 — temperature corrections to laboratory
+/// refractometer readings when the temperature differs from 20 °C", annex A of
+/// a Russian interstate standard for juice products (as published at
+/// docs.cntd.ru, document 1200157922). Columns 0–70 % (its last column reads
+/// "70 and more", kept here as a 70 and an 85 % column with the same entries),
+/// rows 10–21 °C, and the 22 °C row for 0–25 % (the rest of that row and the
+/// rows above were not legible in the copy read).
+///
+/// Where it differs from [`OIV_TABLE_I_5_TO_20_C`]: it covers dilute samples
+/// (0–10 %Brix, where the OIV table has no columns) and 20–22 °C; over the
+/// cells both tables cover (10–17 °C, 10–70 %) the two differ by up to 0.04
+/// %Brix (tests/world_cal.rs), within which a firmware may pick either.
+pub const JUICE_LAB_TABLE_10_TO_22_C: SucroseCorrectionTable = SucroseCorrectionTable {
+    temperatures_c: &[10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20, 21, 22],
+    brix: &[0, 5, 10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 85],
+    // Table A.1, 0.01 % (minus: subtract from the reading).
+    corrections: &[
+        &[
+            -50, -54, -58, -61, -64, -66, -68, -70, -72, -73, -74, -75, -76, -78, -79, -79,
+        ],
+        &[
+            -46, -49, -53, -55, -58, -60, -62, -64, -65, -66, -67, -68, -69, -70, -71, -71,
+        ],
+        &[
+            -42, -45, -48, -50, -52, -54, -56, -57, -57, -59, -60, -61, -61, -63, -63, -63,
+        ],
+        &[
+            -37, -40, -42, -44, -46, -48, -49, -50, -51, -52, -53, -54, -54, -55, -55, -55,
+        ],
+        &[
+            -33, -35, -37, -39, -40, -41, -42, -43, -44, -45, -45, -46, -46, -47, -47, -47,
+        ],
+        &[
+            -27, -29, -31, -33, -34, -34, -35, -36, -37, -37, -38, -39, -39, -40, -40, -40,
+        ],
+        &[
+            -22, -24, -25, -26, -27, -28, -28, -29, -30, -30, -30, -31, -31, -32, -32, -32,
+        ],
+        &[
+            -17, -18, -19, -20, -21, -21, -21, -22, -22, -23, -23, -23, -23, -24, -24, -24,
+        ],
+        &[
+            -12, -13, -13, -14, -14, -14, -14, -15, -15, -15, -15, -16, -16, -16, -16, -16,
+        ],
+        &[
+            -6, -6, -6, -7, -7, -7, -7, -8, -8, -8, -8, -8, -8, -8, -8, -8,
+        ],
+        &[0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0],
+        &[6, 7, 7, 7, 7, 8, 8, 8, 8, 8, 8, 8, 8, 8, 8, 8],
+        &[13, 13, 14, 14, 15, 15],
+    ],
+};
+
 /// Index `i` such that `axis[i] <= v <= axis[i+1]` and the fraction of the way,
 /// or `None` outside.
 fn bracket<S: Scalar>(axis: &[i32], v: S) -> Result<Option<(usize, S)>, Error> {
@@ -140,11 +194,17 @@ impl SucroseCorrectionTable {
         let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
             return Err(Error::OutOfRange(Quantity::ScaleValue));
         };
-        let mut brix = brix.check_range(
-            Quantity::ScaleValue,
-            S::from_i32(first)?.sub(edge)?,
-            S::from_i32(last)?.add(edge)?,
-        )?;
+        // A table whose first column is 0 %Brix also takes readings in the
+        // band below water that the %Brix scale reports (a water sample read
+        // warm): water's own correction is the first column's.
+        let below = if first == 0 {
+            lit!(S, -super::scales::BELOW_WATER_BAND_BRIX)
+        } else {
+            S::from_i32(first)?.sub(edge)?
+        };
+        let mut brix = brix
+            .check_range(Quantity::ScaleValue, below, S::from_i32(last)?.add(edge)?)?
+            .max(S::from_i32(first)?.sub(edge)?);
         for &col in self.brix {
             let col = S::from_i32(col)?;
             if brix.sub(col)?.abs()? <= edge {
@@ -187,6 +247,17 @@ impl SucroseCompensation {
     pub const fn oiv() -> Self {
         Self {
             table: OIV_TABLE_I_5_TO_20_C,
+        }
+    }
+
+    /// Compensation by the laboratory table for juices
+    /// ([`JUICE_LAB_TABLE_10_TO_22_C`]): 0–85 %Brix at 10–21 °C, 0–25 %Brix
+    /// to 22 °C. The choice for dilute samples (under 10 %Brix), which the OIV
+    /// table does not cover and for which water's own dn/dT is not close
+    /// enough (tests/world_cal.rs measures it).
+    pub const fn juice_lab() -> Self {
+        Self {
+            table: JUICE_LAB_TABLE_10_TO_22_C,
         }
     }
 

@@ -79,6 +79,10 @@ const SLOPE_AT_WATER: f64 = {
         / (6.0 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
 };
 
+/// The band below water in %Brix: the lowest value [`SucroseBrix`] reports,
+/// negated (about 0.14 %Brix).
+pub const BELOW_WATER_BAND_BRIX: f64 = BELOW_WATER_BAND / SLOPE_AT_WATER;
+
 impl<S: Scalar> TradeScale<S> for SucroseBrix {
     /// %Brix at `nd20`; from water down to [`BELOW_WATER_BAND`] below it, the
     /// table's tangent at 0 %Brix gives a small negative value.
@@ -98,7 +102,7 @@ impl<S: Scalar> TradeScale<S> for SucroseBrix {
     /// nD at `value` %Brix; small negative values (down to the band below
     /// water) map back onto the same tangent, so both directions agree.
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        if value < S::ZERO && value >= lit!(S, -BELOW_WATER_BAND / SLOPE_AT_WATER) {
+        if value < S::ZERO && value >= lit!(S, -BELOW_WATER_BAND_BRIX) {
             return value
                 .mul(lit!(S, SLOPE_AT_WATER * 10_000.0))?
                 .mul(lit!(S, 0.01))?
