@@ -1,8 +1,9 @@
 //! Sample and prism temperature compensation (ATC) to the 20 °C of the trade
 //! tables.
 //!
-//! - [`SucroseCompensation`]: the published correction table for sucrose
-//!   (%Brix to add, by temperature and sugar content).
+//! - [`SucroseCompensation`]: a published correction table for sucrose
+//!   (%Brix to add, by temperature and sugar content): OIV-MA-AS2-02 Table I,
+//!   or a laboratory table for juices that also covers dilute samples.
 //! - [`WaterCompensation`]: water's own index change, from any [`Medium`]
 //!   (for example an IAPWS R9-97 water model).
 //! - [`LinearCompensation`]: a user's dn/dT for other samples.
@@ -54,7 +55,8 @@ pub struct SucroseCorrectionTable {
 ///
 /// The rows for 18–19 °C and 21–30 °C of the same table were not available
 /// when this was written: between 17 °C and 20 °C the correction is
-/// interpolated to the 20 °C zero, and above 20 °C [`SucroseCompensation::oiv`]
+/// interpolated to the 20 °C zero (within 0.007 %Brix of the 18 and 19 °C rows
+/// of [`JUICE_LAB_TABLE_10_TO_22_C`]), and above 20 °C [`SucroseCompensation::oiv`]
 /// reports [`Error::OutOfRange`]. A firmware that needs 20–30 °C supplies the
 /// full table through [`SucroseCompensation::new`].
 pub const OIV_TABLE_I_5_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable {
