@@ -8,7 +8,8 @@ use embedded_optics::refractometer::compensation::{
 };
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, choose_slots, crc32};
 use embedded_optics::refractometer::scales::{
-    HoneyWater, MustPotentialAlcohol, Salinity, SucroseBrix, UserScale,
+    BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
+    MustPotentialAlcohol, Salinity, SucroseBrix, UserScale,
 };
 use embedded_optics::refractometer::table::{LinearTable, UniformCubicTable};
 use embedded_optics::refractometer::thermistor::{
@@ -78,6 +79,12 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     within(HoneyWater.value_at(a), 13.0, 25.0);
     within(HoneyWater.nd20_at(a), 1.473, 1.505);
     within(MustPotentialAlcohol.value_at(a), 4.87, 18.36);
+    within(EthyleneGlycolMass.value_at(a), -1e-3, 60.001);
+    within(EthyleneGlycolMass.nd20_at(a), 1.3329, 1.3932);
+    within(EthyleneGlycolFreezingPoint.value_at(a), -51.24, 1e-3);
+    within(EthyleneGlycolFreezingPoint.nd20_at(a), 1.3329, 1.3932);
+    within(BatteryAcidDensity.value_at(a), 1.0249, 1.4988);
+    within(BatteryAcidDensity.nd20_at(a), 1.3378, 1.4078);
     within(MustPotentialAlcohol.nd20_at(a), 1.3478, 1.3812);
     within(USER.value_at(a), -1e-3, 120.001);
     within(USER.nd20_at(a), 1.3329, 1.3501);

@@ -7,6 +7,9 @@
 //! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
 //! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
 //! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
+//! | [`EthyleneGlycolMass`] | % by mass | 0–60 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 4 % grid) |
+//! | [`EthyleneGlycolFreezingPoint`] | °C | 0 to −51.2 | same table, freezing-point depression |
+//! | [`BatteryAcidDensity`] | g/cm³ at 20 °C | 1.025–1.499 | same table, sulfuric acid density |
 //! | [`UserScale`] | user's | user's | a [`LinearTable`] of the user's own |
 //!
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
@@ -261,12 +264,150 @@ impl<S: Scalar> TradeScale<S> for MustPotentialAlcohol {
     }
 }
 
+/// Ethylene glycol in water at 20 °C (CRC Handbook of Chemistry and Physics,
+/// "Concentrative properties of aqueous solutions", 589 nm, relative to air):
+/// nD at 0, 4, ..., 60 % by mass. The 0 % node is water, 1.33299 (the
+/// handbook prints it as 1.3330). × 10⁵ here: the handbook's four decimals
+/// and water's fifth.
+const GLYCOL_ND: UniformCubicTable = UniformCubicTable {
+    x0: 0,
+    step: 4,
+    x_den: 1,
+    ys: &[
+        133299, 133670, 134050, 134440, 134840, 135230, 135640, 136050, 136460, 136870, 137280,
+        137690, 138110, 138510, 138920, 139310,
+    ],
+    y_den: 100_000,
+};
+
+/// Freezing-point depression of the same solutions, °C × 100, on the same
+/// mass grid (same handbook table).
+const GLYCOL_FREEZING_DEPRESSION: UniformCubicTable = UniformCubicTable {
+    x0: 0,
+    step: 4,
+    x_den: 1,
+    ys: &[
+        0, 124, 262, 416, 591, 793, 1028, 1303, 1623, 1982, 2384, 2832, 3330, 3881, 4483, 5123,
+    ],
+    y_den: 100,
+};
+
+/// Ethylene glycol in water, % by mass, 0–60 % (nD 1.33299–1.3931).
+///
+/// Engine and heat-transfer coolant. The handbook table is for the pure
+/// glycol–water pair at 20 °C; inhibitor packages and dyes in commercial
+/// coolants shift nD, and propylene glycol reads quite differently: the
+/// fluid's maker's table governs. Ethylene glycol is toxic; handle samples as
+/// the fluid's safety data sheet says.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct EthyleneGlycolMass;
+
+impl<S: Scalar> TradeScale<S> for EthyleneGlycolMass {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        GLYCOL_ND.x_at(nd20, Quantity::RefractiveIndex)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        GLYCOL_ND.y_at(value, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "% m/m"
+    }
+}
+
+/// Freezing point of an ethylene glycol–water coolant, °C, 0 to −51.2 °C
+/// (0–60 % by mass), through the mass fraction.
+///
+/// The freezing point is where ice first forms, not where the coolant stops
+/// protecting the engine; protection limits, inhibitor content and the
+/// mixture's burst point are the coolant maker's figures. The same cautions
+/// as [`EthyleneGlycolMass`] apply.
+///
+/// ```
+/// use embedded_optics::refractometer::{TradeScale, scales::EthyleneGlycolFreezingPoint};
+/// // 40 % by mass: the handbook gives a 23.84 °C depression.
+/// let t: f64 = EthyleneGlycolFreezingPoint.value_at(1.3728).unwrap();
+/// assert!((t + 23.84).abs() < 0.01);
+/// ```
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct EthyleneGlycolFreezingPoint;
+
+impl<S: Scalar> TradeScale<S> for EthyleneGlycolFreezingPoint {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        let mass = GLYCOL_ND.x_at(nd20, Quantity::RefractiveIndex)?;
+        let depression = GLYCOL_FREEZING_DEPRESSION.y_at(mass, Quantity::ScaleValue)?;
+        S::ZERO.sub(depression)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        let depression = S::ZERO.sub(value)?;
+        let mass = GLYCOL_FREEZING_DEPRESSION.x_at(depression, Quantity::ScaleValue)?;
+        GLYCOL_ND.y_at(mass, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "°C"
+    }
+}
+
+/// Sulfuric acid in water at 20 °C (same handbook table): nD × 10⁴ at 4, 8,
+/// ..., 60 % by mass.
+const ACID_ND: UniformCubicTable = UniformCubicTable {
+    x0: 4,
+    step: 4,
+    x_den: 1,
+    ys: &[
+        13379, 13427, 13475, 13525, 13576, 13628, 13677, 13725, 13773, 13821, 13870, 13920, 13971,
+        14024, 14077,
+    ],
+    y_den: 10_000,
+};
+
+/// Density of the same solutions at 20 °C, g/cm³ × 10⁴, on the same grid.
+const ACID_DENSITY: UniformCubicTable = UniformCubicTable {
+    x0: 4,
+    step: 4,
+    x_den: 1,
+    ys: &[
+        10250, 10522, 10802, 11094, 11398, 11714, 12031, 12353, 12685, 13028, 13386, 13759, 14149,
+        14558, 14987,
+    ],
+    y_den: 10_000,
+};
+
+/// Density at 20 °C of sulfuric acid electrolyte (lead–acid batteries),
+/// g/cm³, 1.025–1.499 (4–60 % by mass, nD 1.3379–1.4077), through the mass
+/// fraction.
+///
+/// Battery makers quote "specific gravity", often referred to water at 25 °C
+/// or 80 °F; that differs from this density by up to a few parts in a
+/// thousand and the battery maker's reference governs. Battery acid is
+/// corrosive and a charging battery gives off hydrogen: eye protection,
+/// gloves and the battery maker's and local rules apply when sampling.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BatteryAcidDensity;
+
+impl<S: Scalar> TradeScale<S> for BatteryAcidDensity {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        let mass = ACID_ND.x_at(nd20, Quantity::RefractiveIndex)?;
+        ACID_DENSITY.y_at(mass, Quantity::ScaleValue)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        let mass = ACID_DENSITY.x_at(value, Quantity::ScaleValue)?;
+        ACID_ND.y_at(mass, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "g/cm³"
+    }
+}
+
 /// A scale of the user's own: a piecewise-linear [`LinearTable`] from nD at
 /// 20 °C (`x`) to the scale value (`y`), and its unit.
 ///
-/// For clinical or hazardous-liquid scales (urine or serum specific gravity,
-/// glycol coolant freeze point, battery acid), the table must come from the
-/// fluid's maker or the applicable standard and be validated on the instrument;
+/// For clinical or hazardous-liquid scales (urine or serum specific gravity, a
+/// propylene-glycol or branded coolant, an electrolyte other than plain
+/// sulfuric acid), the table must come from the fluid's maker or the
+/// applicable standard and be validated on the instrument;
 /// a refractometer reading does not replace the laboratory method, and local
 /// codes and licensed practice govern its use.
 ///

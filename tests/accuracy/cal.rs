@@ -10,7 +10,8 @@ use embedded_optics::refractometer::compensation::{
 use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::record::CalibrationRecord;
 use embedded_optics::refractometer::scales::{
-    HoneyWater, MustPotentialAlcohol, Salinity, SucroseBrix,
+    BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
+    MustPotentialAlcohol, Salinity, SucroseBrix,
 };
 use embedded_optics::refractometer::thermistor::{Beta, SteinhartHart, ThermistorModel};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
@@ -23,10 +24,13 @@ const ICUMSA: [f64; 18] = [
     1.42009, 1.43080, 1.44193, 1.45348, 1.46546, 1.47787, 1.49071, 1.50398,
 ];
 
-fn icumsa_nd(brix: f64) -> f64 {
-    let u = brix / 5.0;
-    let k = (u.floor() as usize).min(16);
-    let k0 = k.saturating_sub(1).min(14);
+/// Four-point Lagrange interpolation on a uniform grid `x0 + i·step`, the
+/// stencil the scales use (the segment's two neighbours, shifted inwards at the
+/// ends).
+fn uniform_cubic(ys: &[f64], x0: f64, step: f64, x: f64) -> f64 {
+    let u = (x - x0) / step;
+    let k = (u.floor().max(0.0) as usize).min(ys.len() - 2);
+    let k0 = k.saturating_sub(1).min(ys.len() - 4);
     let xs = [k0 as f64, k0 as f64 + 1.0, k0 as f64 + 2.0, k0 as f64 + 3.0];
     let mut y = 0.0;
     for i in 0..4 {
@@ -36,22 +40,129 @@ fn icumsa_nd(brix: f64) -> f64 {
                 w *= (u - xs[j]) / (xs[i] - xs[j]);
             }
         }
-        y += w * ICUMSA[k0 + i];
+        y += w * ys[k0 + i];
     }
     y
 }
 
-fn icumsa_brix(nd: f64) -> f64 {
-    let (mut a, mut b) = (0.0, 85.0);
+/// `x` in `lo..=hi` where the rising `f(x)` equals `y`, by bisection.
+fn invert(f: impl Fn(f64) -> f64, y: f64, lo: f64, hi: f64) -> f64 {
+    let (mut a, mut b) = (lo, hi);
     for _ in 0..200 {
         let m = 0.5 * (a + b);
-        if icumsa_nd(m) < nd {
+        if f(m) < y {
             a = m;
         } else {
             b = m;
         }
     }
     0.5 * (a + b)
+}
+
+fn icumsa_nd(brix: f64) -> f64 {
+    uniform_cubic(&ICUMSA, 0.0, 5.0, brix)
+}
+
+fn icumsa_brix(nd: f64) -> f64 {
+    invert(icumsa_nd, nd, 0.0, 85.0)
+}
+
+/// CRC Handbook rows the glycol scales store: nD and freezing-point
+/// depression (°C) at 0, 4, ..., 60 % by mass.
+const GLYCOL_ND: [f64; 16] = [
+    1.33299, 1.3367, 1.3405, 1.3444, 1.3484, 1.3523, 1.3564, 1.3605, 1.3646, 1.3687, 1.3728,
+    1.3769, 1.3811, 1.3851, 1.3892, 1.3931,
+];
+const GLYCOL_DEPRESSION: [f64; 16] = [
+    0.0, 1.24, 2.62, 4.16, 5.91, 7.93, 10.28, 13.03, 16.23, 19.82, 23.84, 28.32, 33.3, 38.81,
+    44.83, 51.23,
+];
+
+/// CRC Handbook rows the battery-acid scale stores: nD and density at 4, 8,
+/// ..., 60 % by mass.
+const ACID_ND: [f64; 15] = [
+    1.3379, 1.3427, 1.3475, 1.3525, 1.3576, 1.3628, 1.3677, 1.3725, 1.3773, 1.3821, 1.387, 1.392,
+    1.3971, 1.4024, 1.4077,
+];
+const ACID_DENSITY: [f64; 15] = [
+    1.025, 1.0522, 1.0802, 1.1094, 1.1398, 1.1714, 1.2031, 1.2353, 1.2685, 1.3028, 1.3386, 1.3759,
+    1.4149, 1.4558, 1.4987,
+];
+
+fn glycol_mass(nd: f64) -> f64 {
+    invert(|w| uniform_cubic(&GLYCOL_ND, 0.0, 4.0, w), nd, 0.0, 60.0)
+}
+
+pub struct GlycolMassFromNd;
+impl Case for GlycolMassFromNd {
+    const NAME: &'static str = "scales::EthyleneGlycolMass::value_at";
+    const UNIT: &'static str = "% by mass";
+    const DOMAIN: &'static str = "nD 1.33299–1.3931 (0–60 %)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-12,
+        f32: 2.0e-4,
+        i32f32: 3.0e-6,
+        i8f24: 6.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(glycol_mass(x[0]))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        EthyleneGlycolMass.value_at(x[0])
+    }
+}
+
+pub struct GlycolFreezingFromNd;
+impl Case for GlycolFreezingFromNd {
+    const NAME: &'static str = "scales::EthyleneGlycolFreezingPoint::value_at";
+    const UNIT: &'static str = "°C";
+    const DOMAIN: &'static str = "nD 1.33299–1.3931 (0 to −51.2 °C)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-11,
+        f32: 3.0e-4,
+        i32f32: 5.0e-6,
+        i8f24: 1.0e-3,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(-uniform_cubic(
+            &GLYCOL_DEPRESSION,
+            0.0,
+            4.0,
+            glycol_mass(x[0]),
+        ))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        EthyleneGlycolFreezingPoint.value_at(x[0])
+    }
+}
+
+pub struct BatteryAcidFromNd;
+impl Case for BatteryAcidFromNd {
+    const NAME: &'static str = "scales::BatteryAcidDensity::value_at";
+    const UNIT: &'static str = "g/cm³";
+    const DOMAIN: &'static str = "nD 1.3379–1.4077 (4–60 % by mass)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-13,
+        f32: 2.0e-6,
+        i32f32: 3.0e-8,
+        i8f24: 2.0e-6,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.3379, 1.4077, 601).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        let mass = invert(|w| uniform_cubic(&ACID_ND, 4.0, 4.0, w), x[0], 4.0, 60.0);
+        Some(uniform_cubic(&ACID_DENSITY, 4.0, 4.0, mass))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        BatteryAcidDensity.value_at(x[0])
+    }
 }
 
 pub struct BrixFromNd;
