@@ -26,11 +26,11 @@ use embedded_optics::refractometer::forward::{Rng, SampleState, render};
 use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::instrument::{Instrument, Reading};
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, Slot, choose_slots};
-use embedded_optics::refractometer::scales::SucroseBrix;
+use embedded_optics::refractometer::scales::{HoneyWater, SucroseBrix};
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
-use embedded_optics::{Error, Scalar};
+use embedded_optics::{Error, Quantity, Scalar};
 use fixed::types::{I8F24, I32F32};
 use std::sync::OnceLock;
 use support::{DESCRIPTION, LED_NM, PIXELS, scene};
@@ -67,6 +67,13 @@ fn chain<S: Scalar, C: SampleCompensation<S>>(comp: C) -> Chain<S, C> {
         SucroseBrix,
     )
     .unwrap()
+}
+
+/// `[f::<f64>(), f::<f32>(), f::<I32F32>(), f::<I8F24>()]`.
+macro_rules! every_type {
+    ($f:ident) => {
+        [$f::<f64>(), $f::<f32>(), $f::<I32F32>(), $f::<I8F24>()]
+    };
 }
 
 /// The thermistor: a 10 kΩ NTC, β = 3950 K (a common part, from memory), on
@@ -130,8 +137,8 @@ fn sucrose_at_led<C: SampleCompensation<f64>>(brix: f64, t: f64, comp: &C) -> f6
     standard_reference(nd20, &WaterLikeDispersion, comp, LED_UM, t).unwrap()
 }
 
-fn read<S: Scalar, C: SampleCompensation<S>>(
-    inst: &mut Chain<S, C>,
+fn read<S: Scalar, C: SampleCompensation<S>, T: TradeScale<S>>(
+    inst: &mut Instrument<S, Glass<S>, WaterLikeDispersion, C, T>,
     f: &[u16],
     t: S,
 ) -> Result<Reading<S>, Error> {
@@ -280,7 +287,10 @@ fn bias<S: Scalar>(correction: Correction<S>, thermistor: bool, verbose: bool) -
         .unwrap_or_else(|e| panic!("{} %Brix {} °C {:?}: {e:?}", p.brix, p.t, p.comp));
         let nd20 = SucroseBrix.nd20_at(p.brix).unwrap();
         let e_nd = r.nd20.to_f64() - nd20;
-        let e_brix = r.scale_value.to_f64() - p.brix;
+        let brix = r
+            .scale_value
+            .unwrap_or_else(|e| panic!("{} %Brix {} °C {:?}: scale {e:?}", p.brix, p.t, p.comp));
+        let e_brix = brix.to_f64() - p.brix;
         if verbose {
             println!(
                 "{:>5.1} %Brix {:>4.1} °C {:?}: nD20 error {e_nd:+.2e}, %Brix error {e_brix:+.4}",
@@ -472,12 +482,7 @@ fn survives_power_loss<S: Scalar>() -> f64 {
 
 #[test]
 fn calibration_survives_power_loss_every_type() {
-    let worst = [
-        survives_power_loss::<f64>(),
-        survives_power_loss::<f32>(),
-        survives_power_loss::<I32F32>(),
-        survives_power_loss::<I8F24>(),
-    ];
+    let worst = every_type!(survives_power_loss);
     println!("largest reading change across a restore (f64 f32 I32F32 I8F24): {worst:?}");
     // f64 coefficients round to I32F32's 2.3e-10; f32 coefficients of the
     // three-standard calibration do not all survive the record's I32F32
@@ -526,8 +531,10 @@ fn restore_refuses_foreign_records() {
 
 /// RMS error and pooled repeatability (nD) of 4-frame readings at SNR 100
 /// (full scale / read noise), 20 readings at each of 2–60 %Brix, 15 °C
-/// (OIV) and 30 °C (water dn/dT), through the thermistor. Not 0 %Brix: a
-/// noisy reading of water more than 2e-5 below 1.33299 is out of the scale.
+/// (OIV) and 30 °C (water dn/dT), through the thermistor. Not 0 %Brix: these
+/// are the points of the figures in docs/refractometer.md; noisy water, half
+/// of it below the %Brix zero band, is read in
+/// `noisy_water_below_the_brix_zero_keeps_its_reading`.
 fn noise<S: Scalar>() -> (f64, f64) {
     let correction = calibrated::<S>(false).correction();
     let mut rng = Rng::new(100);
@@ -606,4 +613,122 @@ fn water_compensation_against_the_sucrose_table() {
         worst.0, worst.1, worst.2
     );
     assert!(worst.0.abs() > 0.01);
+}
+
+/// A 29.5 % sucrose solution read with the honey scale selected (nD20 range
+/// about 1.474–1.504, the Chataway table's 25–13 % water): the chain reads it
+/// as the %Brix unit does, only the scale value is the scale's error.
+/// Returns the nD20 error against the published value.
+fn sucrose_on_the_honey_scale<S: Scalar>() -> f64 {
+    // OIV-MA-AS2-02 Table II (French arrêté of 14 September 2011, annex IV):
+    // 29.5 % mass sucrose, nD at 20 °C.
+    let true_nd20 = 1.38025;
+    let t = 15.0;
+    let n_led = standard_reference(true_nd20, &WaterLikeDispersion, &sucrose(), LED_UM, t).unwrap();
+    let f = frame(n_led, t);
+    let correction = calibrated::<S>(false).correction();
+    let mut honey = Instrument::new(
+        &DESCRIPTION,
+        prism::<S>(),
+        WaterLikeDispersion,
+        sucrose(),
+        HoneyWater,
+    )
+    .unwrap();
+    let mut brix = chain::<S, _>(sucrose());
+    honey.set_correction(correction);
+    brix.set_correction(correction);
+    let ts = sensed::<S>(t);
+    let r = read(&mut honey, &f, ts).expect("a sample off the scale is still read");
+    let b = read(&mut brix, &f, ts).unwrap();
+    // HoneyWater checks nD20 against its range: the quantity refused is the index.
+    assert_eq!(
+        r.scale_value,
+        Err(Error::OutOfRange(Quantity::RefractiveIndex))
+    );
+    // The scale is no part of the chain: the same figures as on the %Brix unit,
+    // whose scale value is the sample's %Brix (OIV-MA-AS2-02 Table II row 29.5).
+    assert_eq!(
+        (r.nd20, r.nd, r.uncertainty, r.stable),
+        (b.nd20, b.nd, b.uncertainty, b.stable)
+    );
+    let on_brix = b
+        .scale_value
+        .expect("29.5 %Brix is on the %Brix scale")
+        .to_f64();
+    // The grid's target, 0.015 %Brix (`every_type_within_target`).
+    assert!((on_brix - 29.5).abs() < 0.015, "{on_brix}");
+    assert!(r.uncertainty > S::ZERO);
+    r.nd20.to_f64() - true_nd20
+}
+
+#[test]
+fn sample_off_the_selected_scale_keeps_its_reading() {
+    let errors = every_type!(sucrose_on_the_honey_scale);
+    println!(
+        "29.5 %Brix on the honey scale, nD20 error (f64 f32 I32F32 I8F24): {:+.2e} {:+.2e} {:+.2e} {:+.2e}",
+        errors[0], errors[1], errors[2], errors[3]
+    );
+    for e in errors {
+        // The grid's target, 2e-5 nD (`every_type_within_target`).
+        assert!(e.abs() < 2e-5, "{e}");
+    }
+}
+
+/// Noisy readings of water on the %Brix unit: those more than 2e-5 below the
+/// scale's 0 %Brix (nD 1.33299) have no %Brix value, and keep their nD20.
+fn water_below_the_brix_zero<S: Scalar>() -> (usize, usize, f64) {
+    let correction = calibrated::<S>(false).correction();
+    let mut inst = chain::<S, _>(water_comp());
+    inst.set_correction(correction);
+    let t = 30.0;
+    let n_led = water_reference(&Water::new(AIR), LED_UM, t).unwrap();
+    let ts = sensed::<S>(t);
+    let mut rng = Rng::new(300);
+    let (mut off, mut n, mut sq) = (0, 0, 0.0);
+    while n < 100 {
+        let f = noisy_frame(n_led, t, 100.0, &mut rng);
+        let Some(r) = inst.measure(&f, ts).expect("water is read") else {
+            continue;
+        };
+        n += 1;
+        let nd20 = r.nd20.to_f64();
+        // Water at 20 °C, IAPWS R9-97 over Ciddor air (`WATER_ND_AIR_IAPWS`).
+        sq += (nd20 - WATER_ND_AIR_IAPWS[1].1).powi(2);
+        // 1.33299: the 0 % row of the ISO 1743 sucrose table (GOST R
+        // 50546-93, as in tests/world_cal.rs); 2e-5: the zero band the
+        // scale documents.
+        let below = S::from_f64(1.33299 - 2e-5).unwrap();
+        if r.nd20 < below {
+            off += 1;
+            assert_eq!(
+                r.scale_value,
+                Err(Error::OutOfRange(Quantity::RefractiveIndex)),
+                "{nd20}"
+            );
+        } else {
+            let v = r.scale_value.expect("on the scale").to_f64();
+            // Water is 0 %Brix; 0.1 %Brix is about 1.5e-4 nD there (0 % at
+            // 1.33299, same table; 10 % at 1.34782, OIV-MA-AS2-02 Table II),
+            // past 3σ of this noise.
+            assert!((0.0..0.1).contains(&v), "{nd20}: {v} %Brix");
+        }
+    }
+    (off, n, (sq / n as f64).sqrt())
+}
+
+#[test]
+fn noisy_water_below_the_brix_zero_keeps_its_reading() {
+    for (name, (off, n, rms)) in [
+        ("f64", water_below_the_brix_zero::<f64>()),
+        ("I8F24", water_below_the_brix_zero::<I8F24>()),
+    ] {
+        println!(
+            "{name}: {off} of {n} water readings below the %Brix zero band, RMS nD20 error {rms:.2e}"
+        );
+        // Some must fall below, or the check above checked nothing.
+        assert!(off > 0 && off < n, "{name}: {off} of {n}");
+        // `noise_at_snr_100`'s bound for 4-frame readings at SNR 100.
+        assert!(rms < 5e-5, "{name}: {rms}");
+    }
 }

@@ -203,6 +203,10 @@ fn instrument_in<S: Scalar>(d: &InstrumentDescription, frame: &[u16], t: f64) {
         if let Ok(Some(r)) = inst.measure(frame, t) {
             assert!((1.0..=4.5).contains(&r.nd20.to_f64()));
             assert!(r.uncertainty >= S::ZERO);
+            // Off the scale is an error beside the reading, never a garbage value.
+            if let Ok(v) = r.scale_value {
+                assert!(v.to_f64().is_finite());
+            }
         }
         if let Ok(Some(a)) = inst.feed(frame, t) {
             let _ = inst.zero_with_water(&a, &LinearWater);

@@ -47,7 +47,8 @@
 //! use embedded_optics::refractometer::forward::{render, Rng, SampleState, SensorScene};
 //! use embedded_optics::refractometer::geometry::GeometryDescription;
 //! use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
-//! use embedded_optics::refractometer::{record::choose_slots, scales::SucroseBrix, TradeScale};
+//! use embedded_optics::refractometer::scales::{HoneyWater, SucroseBrix};
+//! use embedded_optics::refractometer::{record::choose_slots, TradeScale};
 //! use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 //! use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 //! # fn main() -> Result<(), embedded_optics::Error> {
@@ -110,8 +111,17 @@
 //! // A 20 %Brix juice at 15 °C: frame → boundary → geometry → nD → nD20 → %Brix.
 //! shoot(at_led(20.0)?, &mut frame)?;
 //! let reading = inst.measure(&frame, t)?.unwrap();
-//! assert!((reading.scale_value - 20.0).abs() < 0.015);
+//! assert!((reading.scale_value? - 20.0).abs() < 0.015);
 //! assert!(reading.uncertainty > 0.0 && reading.averaged.boundary.contrast() > 500);
+//!
+//! // The same juice on a scale it is not on (honey's water content, nD
+//! // 1.474–1.504): nD20 and its uncertainty are still read, the scale value
+//! // is the scale's error.
+//! let mut honey = Instrument::new(&DESCRIPTION, prism, WaterLikeDispersion, sucrose, HoneyWater)?;
+//! honey.set_correction(inst.correction());
+//! let off_scale = honey.measure(&frame, t)?.unwrap();
+//! assert_eq!(off_scale.nd20, reading.nd20);
+//! assert!(matches!(off_scale.scale_value, Err(embedded_optics::Error::OutOfRange(_))));
 //! # Ok(())
 //! # }
 //! ```
@@ -182,8 +192,12 @@ pub struct Reading<S> {
     pub nd20: S,
     /// nD at the sample temperature.
     pub nd: S,
-    /// Value on the trade scale (in the scale's unit).
-    pub scale_value: S,
+    /// Value on the trade scale (in the scale's unit), or the scale's own
+    /// error when nD20 is outside its range. Kept apart from the reading: a
+    /// sample off the selected scale (another product, or water a hair below
+    /// the %Brix zero from noise) still has a valid nD20, temperature and
+    /// uncertainty to show, with the scale value marked out of range.
+    pub scale_value: Result<S, Error>,
     /// Sample index at the LED wavelength, after the calibration correction.
     pub index_at_led: S,
     /// Index the geometry gave before correction (what calibration pairs with a
@@ -457,14 +471,17 @@ where
     }
 
     /// Runs an average through the chain: index, nD, nD at 20 °C, scale value,
-    /// uncertainty; updates the settling window.
+    /// uncertainty; updates the settling window. Fails when the chain itself
+    /// does (geometry, compensation range); a scale error stays inside the
+    /// reading, in [`Reading::scale_value`].
     pub fn read(&mut self, avg: &Averaged<S>) -> Result<Reading<S>, Error> {
         let t = avg.temperature_c;
         let (raw, per_px) = self.raw_index(avg.position, t)?;
         let index_at_led = self.correction.apply(raw)?;
         let (nd, nd20) = self.to_nd20(index_at_led, t)?;
         let nd20 = check_index(nd20)?;
-        let scale_value = self.scale.value_at(nd20)?;
+        // Not `?`: a value off the scale does not cost the reading.
+        let scale_value = self.scale.value_at(nd20);
 
         // Sensitivities: nD20 per index at the LED, per pixel (analytic
         // geometry × correction slope × that), per kelvin (the whole chain,

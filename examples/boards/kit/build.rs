@@ -257,7 +257,8 @@ fn chain_frames() -> Vec<Vec<u16>> {
 
 fn reading<S: Scalar>(r: &chains::ReadingOut<S>, bits: impl Fn(S) -> String) -> String {
     match r {
-        Ok((p, n, b)) => format!("Ok(({p}, {}, {}))", bits(*n), bits(*b)),
+        Ok((p, n, Ok(b))) => format!("Ok(({p}, {}, Ok({})))", bits(*n), bits(*b)),
+        Ok((p, n, Err(e))) => format!("Ok(({p}, {}, Err({e:?})))", bits(*n)),
         Err(e) => format!("Err({e:?})"),
     }
 }
@@ -276,16 +277,16 @@ fn emit_chain<S: Scalar>(
     let o: Vec<String> = r.iter().map(|x| reading(x, bits)).collect();
     writeln!(
         out,
-        "pub static CHAIN_OUT_{name}: [Result<(i32, {ty}, {ty}), Error>; {FRAMES}] = [{}];",
+        "pub static CHAIN_OUT_{name}: [Result<(i32, {ty}, Result<{ty}, Error>), Error>; {FRAMES}] = [{}];",
         o.join(", ")
     )
     .unwrap();
     for (x, (brix, t)) in r.iter().zip(SAMPLES) {
         if let Ok((p, n, b)) = x {
+            let b = b.map_or_else(|e| format!("{e:?}"), |b| format!("{:.3} %Brix", b.to_f64()));
             note!(
-                "{name}: {brix} %Brix at {t} °C: position {p}, nD20 {:.6}, {:.3} %Brix",
-                n.to_f64(),
-                b.to_f64()
+                "{name}: {brix} %Brix at {t} °C: position {p}, nD20 {:.6}, {b}",
+                n.to_f64()
             );
         } else {
             note!("{name}: {brix} %Brix at {t} °C: {x:?}");

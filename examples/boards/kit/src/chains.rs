@@ -100,12 +100,13 @@ pub fn refractometer<S: Scalar>() -> Result<Refractometer<S>, Error> {
     )
 }
 
-/// One reading: boundary position (1/SUBPIXEL px), nD at 20 °C, %Brix.
-pub type ReadingOut<S> = Result<(i32, S, S), Error>;
+/// One reading: boundary position (1/SUBPIXEL px), nD at 20 °C, %Brix (or
+/// the scale's error: a sample off the scale still has its nD).
+pub type ReadingOut<S> = Result<(i32, S, Result<S, Error>), Error>;
 
 /// The refractometer chain on the stored frames: frame 0 (water) zeroes the
 /// instrument, every frame is then read. Output `[0]` is the zero's offset
-/// (position, offset, 0), the others the readings.
+/// (position, offset, Ok(0)), the others the readings.
 pub fn refractometer_run<S: Scalar, P: Copy + Into<i32>>(
     frames: &[&[P]; FRAMES],
     temperatures: &[S; FRAMES],
@@ -122,7 +123,7 @@ pub fn refractometer_run<S: Scalar, P: Copy + Into<i32>>(
     let zero = inst.feed(frames[0], temperatures[0]).and_then(|avg| {
         let avg = avg.ok_or(Error::Overflow)?;
         let c = inst.zero_with_water(&avg, &water)?;
-        Ok((avg.position, c.apply(S::ONE)?.sub(S::ONE)?, S::ZERO))
+        Ok((avg.position, c.apply(S::ONE)?.sub(S::ONE)?, Ok(S::ZERO)))
     });
     out[0] = zero;
     for ((o, f), t) in out.iter_mut().zip(frames).zip(temperatures).skip(1) {
