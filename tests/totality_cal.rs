@@ -9,7 +9,7 @@ use embedded_optics::refractometer::compensation::{
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, choose_slots, crc32};
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
-    MustPotentialAlcohol, Salinity, SucroseBrix, UserScale,
+    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, UserScale,
 };
 use embedded_optics::refractometer::table::{LinearTable, UniformCubicTable};
 use embedded_optics::refractometer::thermistor::{
@@ -79,6 +79,8 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     within(HoneyWater.value_at(a), 13.0, 25.0);
     within(HoneyWater.nd20_at(a), 1.473, 1.505);
     within(MustPotentialAlcohol.value_at(a), 4.87, 18.36);
+    within(SaltBrine.value_at(a), -1e-3, 26.001);
+    within(SaltBrine.nd20_at(a), 1.3329, 1.3796);
     within(EthyleneGlycolMass.value_at(a), -1e-3, 60.001);
     within(EthyleneGlycolMass.nd20_at(a), 1.3329, 1.3932);
     within(EthyleneGlycolFreezingPoint.value_at(a), -51.24, 1e-3);

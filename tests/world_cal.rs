@@ -10,7 +10,7 @@ use embedded_optics::refractometer::record::{
 };
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
-    MustPotentialAlcohol, Salinity, SucroseBrix, UserScale,
+    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, UserScale,
 };
 use embedded_optics::refractometer::table::LinearTable;
 use embedded_optics::refractometer::thermistor::{
@@ -651,6 +651,22 @@ fn ethylene_glycol_against_the_crc_handbook_table() {
     assert_eq!(
         EthyleneGlycolFreezingPoint.nd20_at(0.5f64),
         Err(Error::OutOfRange(Quantity::ScaleValue))
+    );
+}
+
+#[test]
+fn salt_brine_against_the_crc_handbook_table() {
+    // Sodium chloride rows of the same table, 0.1–26 % by mass; the scale
+    // stores the even percentages.
+    let rows = &crc_aqueous::SODIUM_CHLORIDE;
+    let on_grid = |i: usize| rows[i].0 % 2.0 == 0.0;
+    let (wv, wn) = against_rows(SaltBrine, rows, on_grid);
+    println!("salt brine vs CRC: max {wv:.3} % NaCl, nD {wn:.1e}");
+    let w: f64 = SaltBrine.value_at(1.33299).unwrap();
+    assert!(w.abs() < 1e-9);
+    assert_eq!(
+        SaltBrine.value_at(1.3796f64),
+        Err(Error::OutOfRange(Quantity::RefractiveIndex))
     );
 }
 

@@ -7,6 +7,7 @@
 //! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
 //! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
 //! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
+//! | [`SaltBrine`] | % NaCl by mass | 0–26 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 2 % grid) |
 //! | [`EthyleneGlycolMass`] | % by mass | 0–60 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 4 % grid) |
 //! | [`EthyleneGlycolFreezingPoint`] | °C | 0 to −51.2 | same table, freezing-point depression |
 //! | [`BatteryAcidDensity`] | g/cm³ at 20 °C | 1.025–1.499 | same table, sulfuric acid density |
@@ -348,6 +349,39 @@ impl<S: Scalar> TradeScale<S> for EthyleneGlycolFreezingPoint {
     }
     fn unit(&self) -> &'static str {
         "°C"
+    }
+}
+
+/// Sodium chloride in water at 20 °C (same handbook table): nD at 0, 2, ...,
+/// 26 % by mass, × 10⁵; the 0 % node is water, 1.33299.
+const BRINE_ND: UniformCubicTable = UniformCubicTable {
+    x0: 0,
+    step: 2,
+    x_den: 1,
+    ys: &[
+        133299, 133650, 134000, 134350, 134700, 135050, 135410, 135760, 136120, 136480, 136840,
+        137210, 137570, 137950,
+    ],
+    y_den: 100_000,
+};
+
+/// Salt (sodium chloride) brine, % by mass, 0–26 % (nD 1.33299–1.3795):
+/// pickling, curing and cheese brines made with food salt. Other dissolved
+/// salts, sugar or vinegar in the brine read as salt; seawater has its own
+/// scale, [`Salinity`].
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SaltBrine;
+
+impl<S: Scalar> TradeScale<S> for SaltBrine {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        BRINE_ND.x_at(nd20, Quantity::RefractiveIndex)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        BRINE_ND.y_at(value, Quantity::ScaleValue)
+    }
+    fn unit(&self) -> &'static str {
+        "% NaCl"
     }
 }
 

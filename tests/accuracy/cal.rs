@@ -11,7 +11,7 @@ use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::record::CalibrationRecord;
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
-    MustPotentialAlcohol, Salinity, SucroseBrix,
+    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix,
 };
 use embedded_optics::refractometer::thermistor::{Beta, SteinhartHart, ThermistorModel};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
@@ -91,6 +91,39 @@ const ACID_DENSITY: [f64; 15] = [
 
 fn glycol_mass(nd: f64) -> f64 {
     invert(|w| uniform_cubic(&GLYCOL_ND, 0.0, 4.0, w), nd, 0.0, 60.0)
+}
+
+/// CRC Handbook rows the brine scale stores: nD at 0, 2, ..., 26 % NaCl.
+const BRINE_ND: [f64; 14] = [
+    1.33299, 1.3365, 1.34, 1.3435, 1.347, 1.3505, 1.3541, 1.3576, 1.3612, 1.3648, 1.3684, 1.3721,
+    1.3757, 1.3795,
+];
+
+pub struct BrineFromNd;
+impl Case for BrineFromNd {
+    const NAME: &'static str = "scales::SaltBrine::value_at";
+    const UNIT: &'static str = "% NaCl";
+    const DOMAIN: &'static str = "nD 1.33299–1.3795 (0–26 %)";
+    const BUDGET: Budget = Budget {
+        f64: 1.0e-12,
+        f32: 2.0e-4,
+        i32f32: 3.0e-6,
+        i8f24: 6.0e-4,
+    };
+    fn inputs() -> Vec<Vec<f64>> {
+        span(1.33299, 1.3795, 601).map(|x| vec![x]).collect()
+    }
+    fn reference(x: &[f64]) -> Option<f64> {
+        Some(invert(
+            |w| uniform_cubic(&BRINE_ND, 0.0, 2.0, w),
+            x[0],
+            0.0,
+            26.0,
+        ))
+    }
+    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
+        SaltBrine.value_at(x[0])
+    }
 }
 
 pub struct GlycolMassFromNd;

@@ -34,6 +34,7 @@ fn all_rows() -> Vec<Row> {
         row::<cal::HoneyWaterFromNd>(),
         row::<cal::SalinityFromNd>(),
         row::<cal::MustAlcoholFromNd>(),
+        row::<cal::BrineFromNd>(),
         row::<cal::GlycolMassFromNd>(),
         row::<cal::GlycolFreezingFromNd>(),
         row::<cal::BatteryAcidFromNd>(),
