@@ -141,7 +141,7 @@ pub enum Error {
     /// act on it; fall back to a contrast search.
     LowConfidence,
     /// The bright-dark boundary on a line-sensor frame could not be measured; the
-    /// fault says why (no boundary, low contrast, saturated, at the array's end,
+    /// fault says why (no light, no boundary, low contrast, saturated, at the array's end,
     /// more than one boundary).
     Boundary(crate::refractometer::boundary::BoundaryFault),
 }

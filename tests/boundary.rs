@@ -2,9 +2,11 @@
 //! step (error-function profile, pixel-integrated) with known centre, swept over
 //! sub-pixel phases, with white noise at set SNR (contrast / noise σ).
 
+mod support;
+
 use embedded_optics::Error;
 use embedded_optics::refractometer::boundary::*;
-use embedded_optics::refractometer::forward::Rng;
+use embedded_optics::refractometer::forward::{Rng, SampleState, render};
 
 const DARK: f64 = 300.0;
 const CONTRAST: f64 = 3000.0;
@@ -196,4 +198,155 @@ fn wide_edges_beyond_the_search_reach() {
             assert!(e.abs() < 0.01, "blur {blur} w {smoothing}: error {e}");
         }
     }
+}
+
+/// The fault of a frame under `cfg`, `None` for a measured boundary (or another
+/// error).
+fn fault_of<P: Copy + Into<i32>>(frame: &[P], cfg: &BoundaryConfig) -> Option<BoundaryFault> {
+    match find_boundary(frame, cfg) {
+        Err(Error::Boundary(b)) => Some(b),
+        _ => None,
+    }
+}
+
+/// A frame of the shared test instrument (tests/support: 2048 px, dark level
+/// 100, full scale 3000, read noise 30 counts) with the LED at `full_scale`.
+fn rendered(n: f64, full_scale: f64, seed: u64) -> Vec<u16> {
+    let scene = embedded_optics::refractometer::forward::SensorScene {
+        full_scale,
+        ..support::scene(100.0)
+    };
+    let sample = SampleState {
+        index: n,
+        dispersion_per_nm: support::SAMPLE_DN_DL,
+        temperature_c: 20.0,
+    };
+    let mut f = vec![0u16; support::PIXELS];
+    render(
+        &scene,
+        &support::LinearGlass,
+        &sample,
+        &mut Rng::new(seed),
+        &mut f,
+    )
+    .unwrap();
+    f
+}
+
+#[test]
+fn a_frame_without_light_is_no_light() {
+    for dir in [EdgeDirection::DarkToBright, EdgeDirection::BrightToDark] {
+        let cfg = BoundaryConfig::twelve_bit(dir);
+        // Nothing at all: a dark-subtracted frame with the LED off.
+        assert_eq!(fault_of(&[0u16; 1024], &cfg), Some(BoundaryFault::NoLight));
+        assert_eq!(fault_of(&[0u8; 256], &cfg), Some(BoundaryFault::NoLight));
+        // The LED off in the forward model (full scale 0): dark level 100 and
+        // read noise only, raw and dark-subtracted.
+        for seed in 1..=5 {
+            let raw = rendered(1.43, 0.0, seed);
+            let top = raw.iter().max().copied().unwrap_or(0);
+            assert!(top > 150, "noise reaches past the dark level: {top}");
+            assert_eq!(
+                fault_of(&raw, &cfg),
+                Some(BoundaryFault::NoLight),
+                "{dir:?}"
+            );
+            let mut corrected = raw.clone();
+            let dark = vec![100u16; raw.len()];
+            correct_frame(&mut corrected, Some(&dark), None, 4095).unwrap();
+            assert_eq!(fault_of(&corrected, &cfg), Some(BoundaryFault::NoLight));
+        }
+    }
+}
+
+#[test]
+fn a_lit_frame_without_an_edge_is_still_no_boundary() {
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    // Uniform light with noise (σ 30 counts).
+    let mut rng = Rng::new(11);
+    let lit: Vec<u16> = (0..1024)
+        .map(|_| (1000 + 30 * rng.normal_q16() / 65536) as u16)
+        .collect();
+    assert_eq!(fault_of(&lit, &cfg), Some(BoundaryFault::NoBoundary));
+    // The empty prism (air on the face): every ray totally reflected, the
+    // whole sensor lit (TIR beyond the critical angle of air, common practice).
+    let air = rendered(1.001, 3000.0, 12);
+    assert_eq!(fault_of(&air, &cfg), Some(BoundaryFault::NoBoundary));
+    // A sample above the measuring range but below the prism's index: the
+    // Fresnel reflectance rising toward the critical angle still lights the
+    // sensor's far end.
+    let high = rendered(1.60, 3000.0, 13);
+    assert_eq!(fault_of(&high, &cfg), Some(BoundaryFault::NoBoundary));
+}
+
+#[test]
+fn an_index_matched_sample_reflects_no_light() {
+    // Fresnel: no reflection where the sample's index equals the prism's (1.72
+    // here), so the frame is as dark as with the LED off. The finder cannot
+    // tell the two apart; firmware needs a second look (see BoundaryFault::NoLight).
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    let matched = rendered(1.7199, 3000.0, 14);
+    assert_eq!(fault_of(&matched, &cfg), Some(BoundaryFault::NoLight));
+}
+
+#[test]
+fn the_light_floor_is_checked_first_and_exactly() {
+    let mut cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    assert_eq!(cfg.light_floor, cfg.min_contrast);
+    // Brightest block at the floor is lit, one count below is not.
+    assert_eq!(
+        fault_of(&[200u16; 256], &cfg),
+        Some(BoundaryFault::NoBoundary)
+    );
+    assert_eq!(fault_of(&[199u16; 256], &cfg), Some(BoundaryFault::NoLight));
+    // One block at the floor in an unlit frame is enough.
+    let mut one = [0u16; 256];
+    one[64..72].iter_mut().for_each(|p| *p = 200);
+    assert_ne!(fault_of(&one, &cfg), Some(BoundaryFault::NoLight));
+    one[71] = 199;
+    assert_eq!(fault_of(&one, &cfg), Some(BoundaryFault::NoLight));
+    // A faint step under the floor was low contrast; the light check comes
+    // first. With the check off (floor 0) the old fault returns.
+    let mut faint = [0u16; 256];
+    faint[128..].iter_mut().for_each(|p| *p = 150);
+    assert_eq!(fault_of(&faint, &cfg), Some(BoundaryFault::NoLight));
+    cfg.light_floor = 0;
+    assert_eq!(fault_of(&faint, &cfg), Some(BoundaryFault::LowContrast));
+    // A floor at or above the saturation level is a bad configuration.
+    cfg.light_floor = cfg.saturation_level;
+    assert_eq!(
+        find_boundary(&faint, &cfg),
+        Err(Error::OutOfRange(embedded_optics::Quantity::Value))
+    );
+    // A raw frame with a dark level above the floor: lit as far as the finder
+    // can tell, until the floor is raised above the dark level.
+    let mut cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    let mut rng = Rng::new(15);
+    let dark: Vec<u16> = (0..1024)
+        .map(|_| (300 + 30 * rng.normal_q16() / 65536) as u16)
+        .collect();
+    assert_eq!(fault_of(&dark, &cfg), Some(BoundaryFault::NoBoundary));
+    cfg.light_floor = 300 + cfg.min_contrast / 2;
+    assert_eq!(fault_of(&dark, &cfg), Some(BoundaryFault::NoLight));
+}
+
+#[test]
+fn measured_frames_do_not_change() {
+    // The light check only adds a fault: on frames it lets through, the
+    // result is the same as without it (floor 0).
+    let cfg = BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright);
+    let off = BoundaryConfig {
+        light_floor: 0,
+        ..cfg
+    };
+    for (seed, n) in [(21, 1.33), (22, 1.43), (23, 1.50)] {
+        let f = rendered(n, 3000.0, seed);
+        let b = find_boundary(&f, &cfg).expect("edge found");
+        assert_eq!(Ok(b), find_boundary(&f, &off), "n {n}");
+    }
+    // A dim LED (bright side 250 counts above a dark level of 100): still a
+    // boundary, the floor (200) is below the bright side.
+    let mut dim = [100u16; 256];
+    dim[128..].iter_mut().for_each(|p| *p = 350);
+    assert!(find_boundary(&dim, &cfg).is_ok());
 }

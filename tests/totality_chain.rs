@@ -43,26 +43,22 @@ fn direction() -> impl Strategy<Value = EdgeDirection> {
 }
 
 fn config() -> impl Strategy<Value = BoundaryConfig> {
-    (
-        direction(),
-        any::<u8>(),
+    let levels = (
         any::<u16>(),
         any::<u16>(),
-        any::<u8>(),
-        any::<u8>(),
-    )
-        .prop_map(
-            |(direction, smoothing, min_contrast, saturation_level, plateau, opposite_percent)| {
-                BoundaryConfig {
-                    direction,
-                    smoothing,
-                    min_contrast,
-                    saturation_level,
-                    plateau,
-                    opposite_percent,
-                }
-            },
-        )
+        prop_oneof![any::<u16>(), 0u16..600],
+    );
+    (direction(), any::<[u8; 3]>(), levels).prop_map(|(direction, [w, p, o], (c, s, f))| {
+        BoundaryConfig {
+            direction,
+            smoothing: w,
+            min_contrast: c,
+            saturation_level: s,
+            plateau: p,
+            opposite_percent: o,
+            light_floor: f,
+        }
+    })
 }
 
 /// Frames of any length around the accepted range: noise, steps, spikes.
@@ -225,6 +221,24 @@ proptest! {
         check_boundary(f.len(), find_boundary(&f, &cfg));
         let bytes: Vec<u8> = f.iter().map(|&v| (v >> 8) as u8).collect();
         check_boundary(bytes.len(), find_boundary(&bytes, &cfg));
+    }
+
+    #[test]
+    fn no_light_exactly_when_every_block_is_below_the_floor(
+        f in prop_oneof![frame_u16(), proptest::collection::vec(0u16..400, 64..600)],
+        cfg in config(),
+    ) {
+        let r = find_boundary(&f, &cfg);
+        if !matches!(r, Err(Error::OutOfRange(_))) {
+            // Brightest whole 8-pixel block, from the definition.
+            let brightest = f
+                .chunks_exact(8)
+                .map(|c| c.iter().map(|&v| u32::from(v)).sum::<u32>())
+                .max()
+                .unwrap_or(0);
+            let unlit = brightest < 8 * u32::from(cfg.light_floor);
+            prop_assert_eq!(r == Err(Error::Boundary(BoundaryFault::NoLight)), unlit);
+        }
     }
 
     #[test]

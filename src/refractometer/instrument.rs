@@ -25,7 +25,8 @@
 //! for the wavelength.
 //!
 //! A sample at or above the prism's index has no critical angle: the sensor
-//! sees no boundary (or one at the array's end) and the reading is an
+//! sees no boundary (or one at the array's end, or no light where the face
+//! reflects next to nothing) and the reading is an
 //! [`Error::Boundary`], or [`Error::IndexAtOrAbovePrism`] from the geometry,
 //! never a number.
 //!
