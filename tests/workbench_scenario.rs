@@ -114,3 +114,16 @@ fn sample_needs_exactly_one_truth() {
     let text = JUICE.replace("scale_value = 11.5\n", "");
     assert!(error_of(&text).contains("samples[0]"));
 }
+
+#[test]
+fn every_scale_name_parses_and_an_unknown_one_lists_them() {
+    for name in scenario::SCALE_NAMES {
+        let text = AQUARIUM.replace("scale = \"salinity\"", &format!("scale = \"{name}\""));
+        let s = scenario::parse(&text, "test.toml").unwrap();
+        assert_eq!(s.sample_model.scale, name);
+    }
+    let e = error_of(&AQUARIUM.replace("scale = \"salinity\"", "scale = \"pickles\""));
+    println!("{e}");
+    assert!(e.contains("sample_model.scale"), "{e}");
+    assert!(e.contains("\"brine\"") && e.contains("\"battery-acid\""), "{e}");
+}

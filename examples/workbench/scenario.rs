@@ -117,9 +117,21 @@ pub struct SampleModelSpec {
     pub dn_dt_per_k: Option<f64>,
     /// Temperatures the compensation holds for, °C: `[low, high]`.
     pub compensation_range_c: [f64; 2],
-    /// `"brix"`, `"salinity"` or `"nd"`.
+    /// `"brix"`, `"salinity"`, `"brine"`, `"honey"`, `"glycol-freezing-point"`,
+    /// `"battery-acid"` or `"nd"`.
     pub scale: String,
 }
+
+/// The trade scales a scenario can pick, as `sample_model.scale` spells them.
+pub const SCALE_NAMES: [&str; 7] = [
+    "brix",
+    "salinity",
+    "brine",
+    "honey",
+    "glycol-freezing-point",
+    "battery-acid",
+    "nd",
+];
 
 /// Factory calibration.
 #[derive(Debug, Clone, Deserialize)]
@@ -293,12 +305,17 @@ impl Scenario {
         let [lo, hi] = self.sample_model.compensation_range_c;
         within("sample_model.compensation_range_c", lo, -20.0, hi)?;
         within("sample_model.compensation_range_c", hi, lo, 100.0)?;
-        if !["brix", "salinity", "nd"].contains(&self.sample_model.scale.as_str()) {
+        if !SCALE_NAMES.contains(&self.sample_model.scale.as_str()) {
             return Err(bad(
                 "sample_model.scale",
                 &format!(
-                    "\"{}\" is not one of \"brix\", \"salinity\", \"nd\"",
-                    self.sample_model.scale
+                    "\"{}\" is not one of {}",
+                    self.sample_model.scale,
+                    SCALE_NAMES
+                        .iter()
+                        .map(|n| format!("\"{n}\""))
+                        .collect::<Vec<_>>()
+                        .join(", ")
                 ),
             ));
         }

@@ -16,7 +16,9 @@ use embedded_optics::refractometer::compensation::{LinearCompensation, WaterComp
 use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Averaged, Instrument, InstrumentDescription};
-use embedded_optics::refractometer::scales::{Salinity, SucroseBrix};
+use embedded_optics::refractometer::scales::{
+    BatteryAcidDensity, EthyleneGlycolFreezingPoint, HoneyWater, Salinity, SaltBrine, SucroseBrix,
+};
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use embedded_optics::{Error, Scalar};
@@ -52,33 +54,58 @@ impl<S: Scalar> SampleCompensation<S> for SampleModel<S> {
 pub enum Scale {
     /// %Brix (ICUMSA).
     Brix,
-    /// Salinity, ‰.
+    /// Seawater salinity, ‰.
     Salinity,
+    /// Salt brine, % NaCl.
+    Brine,
+    /// Honey water content, %.
+    Honey,
+    /// Ethylene-glycol coolant freezing point, °C.
+    GlycolFreezingPoint,
+    /// Battery-acid density, g/cm³.
+    BatteryAcid,
     /// nD itself.
     Nd,
 }
 
-impl<S: Scalar> TradeScale<S> for Scale {
+/// nD at 20 °C shown as itself.
+struct NdItself;
+
+impl<S: Scalar> TradeScale<S> for NdItself {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        match self {
-            Scale::Brix => SucroseBrix.value_at(nd20),
-            Scale::Salinity => Salinity.value_at(nd20),
-            Scale::Nd => Ok(nd20),
-        }
+        Ok(nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        match self {
-            Scale::Brix => SucroseBrix.nd20_at(value),
-            Scale::Salinity => Salinity.nd20_at(value),
-            Scale::Nd => Ok(value),
-        }
+        Ok(value)
     }
     fn unit(&self) -> &'static str {
+        "nD"
+    }
+}
+
+impl Scale {
+    fn inner<S: Scalar>(&self) -> &'static dyn TradeScale<S> {
         match self {
-            Scale::Brix => TradeScale::<f64>::unit(&SucroseBrix),
-            Scale::Salinity => TradeScale::<f64>::unit(&Salinity),
-            Scale::Nd => "nD",
+            Scale::Brix => &SucroseBrix,
+            Scale::Salinity => &Salinity,
+            Scale::Brine => &SaltBrine,
+            Scale::Honey => &HoneyWater,
+            Scale::GlycolFreezingPoint => &EthyleneGlycolFreezingPoint,
+            Scale::BatteryAcid => &BatteryAcidDensity,
+            Scale::Nd => &NdItself,
         }
+    }
+}
+
+impl<S: Scalar> TradeScale<S> for Scale {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        self.inner().value_at(nd20)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        self.inner().nd20_at(value)
+    }
+    fn unit(&self) -> &'static str {
+        self.inner::<S>().unit()
     }
 }
 
@@ -109,11 +136,15 @@ pub fn sample_model<S: Scalar>(sc: &Scenario) -> Result<SampleModel<S>, Error> {
     })
 }
 
-/// The scenario's scale.
+/// The scenario's scale (the scenario check has refused unknown names).
 pub fn scale(sc: &Scenario) -> Scale {
     match sc.sample_model.scale.as_str() {
         "brix" => Scale::Brix,
         "salinity" => Scale::Salinity,
+        "brine" => Scale::Brine,
+        "honey" => Scale::Honey,
+        "glycol-freezing-point" => Scale::GlycolFreezingPoint,
+        "battery-acid" => Scale::BatteryAcid,
         _ => Scale::Nd,
     }
 }
