@@ -17,6 +17,7 @@
 use super::SampleCompensation;
 use super::TradeScale;
 use super::scales::SucroseBrix;
+use super::table::{Raw, div_round};
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::medium::Medium;
@@ -187,6 +188,9 @@ impl SucroseCorrectionTable {
         if !brix.is_finite() {
             return Err(Error::NotFinite(Quantity::ScaleValue));
         }
+        if let Some(raw) = Raw::<S>::of() {
+            return self.correction_raw(temperature_c, brix, raw);
+        }
         let (r, fr) = bracket(self.temperatures_c, temperature_c)?
             .ok_or(Error::OutOfRange(Quantity::Temperature))?;
         // A reading a hair off a column (the %Brix came through the ICUMSA
@@ -231,6 +235,118 @@ impl SucroseCorrectionTable {
         };
         let along = |row: usize| lerp(&|| self.entry(row, c), &|| self.entry(row, c + 1), fc);
         lerp(&|| along(r), &|| along(r + 1), fr)
+    }
+}
+
+/// Bits of an `f64` constant in a fixed-point `S` (its `lit!`).
+macro_rules! lit_bits {
+    ($S:ty, $x:expr) => {
+        const { $crate::scalar::literal_bits($x, <$S as Scalar>::FORMAT) }
+    };
+}
+
+/// Where bits `v` fall on an integer axis: the first `i` with
+/// `axis[i] ≤ v ≤ axis[i+1]`, with `v − axis[i]` and the step in bits. As
+/// [`bracket`], in integers: `v`'s integer part against the entries.
+fn bracket_bits<S: Scalar>(axis: &[i32], v: i64, raw: Raw<S>) -> Option<(usize, i64, i64)> {
+    let whole = i32::try_from(v >> raw.frac()).ok()?;
+    let on_grid = v == raw.int(whole);
+    axis.windows(2).enumerate().find_map(|(i, w)| {
+        let (&a, &b) = (w.first()?, w.get(1)?);
+        // a ≤ v ≤ b, with v between `whole` and `whole + 1`.
+        if a <= whole && (whole < b || (whole == b && on_grid)) && b > a {
+            let from_a = v.checked_sub(raw.int(a))?;
+            Some((i, from_a, raw.int(b).checked_sub(raw.int(a))?))
+        } else {
+            None
+        }
+    })
+}
+
+/// The integer reading of a [`SucroseCorrectionTable`] for fixed-point types.
+impl SucroseCorrectionTable {
+    /// [`SucroseCorrectionTable::correction`] on the inputs' bits: the same
+    /// range rules, both fractions as exact ratios, one rounding at the end.
+    fn correction_raw<S: Scalar>(
+        &self,
+        temperature_c: S,
+        brix: S,
+        raw: Raw<S>,
+    ) -> Result<S, Error> {
+        let off_t = Error::OutOfRange(Quantity::Temperature);
+        let off_b = Error::OutOfRange(Quantity::ScaleValue);
+        let t = raw.bits(temperature_c).map_err(|_| off_t)?;
+        let (r, tau, t_step) = bracket_bits(self.temperatures_c, t, raw).ok_or(off_t)?;
+        let edge = lit_bits!(S, 0.005).ok_or(Error::Overflow)?;
+        let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
+            return Err(off_b);
+        };
+        let below = if first == 0 {
+            lit_bits!(S, -super::scales::BELOW_WATER_BAND_BRIX).ok_or(Error::Overflow)?
+        } else {
+            raw.int(first).saturating_sub(edge)
+        };
+        let b = raw.bits(brix).map_err(|_| off_b)?;
+        if b < below || b > raw.int(last).saturating_add(edge) {
+            return Err(off_b);
+        }
+        let mut b = b.max(raw.int(first).saturating_sub(edge));
+        // Only the columns at b's integer part and the next can be that close.
+        let whole = b >> raw.frac();
+        for &col in self.brix {
+            let near = i64::from(col) - whole;
+            if (near == 0 || near == 1) && b.abs_diff(raw.int(col)) <= edge.unsigned_abs() {
+                b = raw.int(col);
+            }
+        }
+        let (c, beta, b_step) = bracket_bits(self.brix, b, raw).ok_or(off_b)?;
+        let cell = |row: usize, col: usize| -> Result<i32, Error> {
+            self.corrections
+                .get(row)
+                .and_then(|r| r.get(col))
+                .map(|&v| i32::from(v))
+                .ok_or(off_b)
+        };
+        // The axis steps; below 2^15 (of °C and %Brix: any real table) every
+        // product below is bounded without a check.
+        let (b_whole, t_whole) = (b_step >> raw.frac(), t_step >> raw.frac());
+        let (Ok(db), Ok(dt)) = (i16::try_from(b_whole), i16::try_from(t_whole)) else {
+            return Err(Error::Overflow);
+        };
+        let (db, dt) = (i32::from(db), i32::from(dt));
+        // A row at the sugar content, in 0.01 %Brix times the column step
+        // (bits), below 2^62. On a grid line the far neighbour has zero
+        // weight and is not read: a row or column that ends there stays
+        // usable.
+        let along = |row: usize| -> Result<i64, Error> {
+            Ok(if beta == 0 {
+                i64::from(cell(row, c)? * db) << raw.frac()
+            } else if beta == b_step {
+                i64::from(cell(row, c + 1)? * db) << raw.frac()
+            } else {
+                let a = cell(row, c)?;
+                let rise = i64::from(cell(row, c + 1)? - a) * beta;
+                (i64::from(a * db) << raw.frac()) + rise
+            })
+        };
+        // Between the rows, over 2^frac in the same step (the product needs
+        // up to 127 bits); then one rounding of 0.01·value/(column step · row
+        // step) into bits.
+        let (lo, tail) = if tau == 0 {
+            (along(r)?, 0)
+        } else if tau == t_step {
+            (along(r + 1)?, 0)
+        } else {
+            let lo = along(r)?;
+            let rise = (i128::from(along(r + 1)?) - i128::from(lo)) * i128::from(tau);
+            let tail = i64::try_from(rise >> raw.frac()).map_err(|_| Error::Overflow)?;
+            (lo, tail)
+        };
+        let num = lo
+            .checked_mul(i64::from(dt))
+            .and_then(|v| v.checked_add(tail))
+            .ok_or(Error::Overflow)?;
+        raw.value(div_round(num, i64::from(db * dt) * 100)?)
     }
 }
 
