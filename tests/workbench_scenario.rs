@@ -125,5 +125,8 @@ fn every_scale_name_parses_and_an_unknown_one_lists_them() {
     let e = error_of(&AQUARIUM.replace("scale = \"salinity\"", "scale = \"pickles\""));
     println!("{e}");
     assert!(e.contains("sample_model.scale"), "{e}");
-    assert!(e.contains("\"brine\"") && e.contains("\"battery-acid\""), "{e}");
+    assert!(
+        e.contains("\"brine\"") && e.contains("\"battery-acid\""),
+        "{e}"
+    );
 }
