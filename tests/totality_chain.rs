@@ -190,7 +190,7 @@ fn instrument_desc() -> impl Strategy<Value = InstrumentDescription> {
 
 fn instrument_in<S: Scalar>(d: &InstrumentDescription, frame: &[u16], t: f64) {
     let Ok(mut inst) =
-        Instrument::<S, _, _, _, _>::new(d, LinearGlass, LinearSample, LinearSample, LinearSample)
+        Instrument::<S, _, _, _, _>::new(d, LinearGlass, LinearSample, LinearSample, IndexScale)
     else {
         return;
     };

@@ -9,7 +9,7 @@ use embedded_optics::refractometer::record::{
     CalibrationRecord, RECORD_LEN, Slot, choose_slots, crc32,
 };
 use embedded_optics::refractometer::scales::{
-    BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
+    BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater, IndexScale,
     MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, UserScale,
 };
 use embedded_optics::refractometer::table::LinearTable;
@@ -741,6 +741,18 @@ fn salinity_against_quan_fry_full_relation() {
         assert!((fixed.to_num::<f64>() - s).abs() < 0.01);
     }
     assert!(Salinity.nd20_at(43.5f64).is_err());
+}
+
+#[test]
+fn index_scale_is_nd_itself_and_refuses_what_is_no_index() {
+    // Water at 20 °C, 1.33299 (common practice), both ways.
+    let v: f64 = IndexScale.value_at(1.33299).unwrap();
+    assert_eq!(v, 1.33299);
+    let n: f64 = IndexScale.nd20_at(1.33299).unwrap();
+    assert_eq!(n, 1.33299);
+    assert!(IndexScale.value_at(0.5f64).is_err());
+    assert!(IndexScale.value_at(f64::NAN).is_err());
+    assert!(IndexScale.nd20_at(f64::INFINITY).is_err());
 }
 
 #[test]

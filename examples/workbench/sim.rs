@@ -17,7 +17,8 @@ use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, ren
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Averaged, Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::{
-    BatteryAcidDensity, EthyleneGlycolFreezingPoint, HoneyWater, Salinity, SaltBrine, SucroseBrix,
+    BatteryAcidDensity, EthyleneGlycolFreezingPoint, HoneyWater, IndexScale, Salinity, SaltBrine,
+    SucroseBrix,
 };
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
@@ -68,21 +69,6 @@ pub enum Scale {
     Nd,
 }
 
-/// nD at 20 °C shown as itself.
-struct NdItself;
-
-impl<S: Scalar> TradeScale<S> for NdItself {
-    fn value_at(&self, nd20: S) -> Result<S, Error> {
-        Ok(nd20)
-    }
-    fn nd20_at(&self, value: S) -> Result<S, Error> {
-        Ok(value)
-    }
-    fn unit(&self) -> &'static str {
-        "nD"
-    }
-}
-
 impl Scale {
     fn inner<S: Scalar>(&self) -> &'static dyn TradeScale<S> {
         match self {
@@ -92,7 +78,7 @@ impl Scale {
             Scale::Honey => &HoneyWater,
             Scale::GlycolFreezingPoint => &EthyleneGlycolFreezingPoint,
             Scale::BatteryAcid => &BatteryAcidDensity,
-            Scale::Nd => &NdItself,
+            Scale::Nd => &IndexScale,
         }
     }
 }

@@ -11,6 +11,7 @@
 //! | [`EthyleneGlycolMass`] | % by mass | 0–60 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 4 % grid) |
 //! | [`EthyleneGlycolFreezingPoint`] | °C | 0 to −51.2 | same table, freezing-point depression |
 //! | [`BatteryAcidDensity`] | g/cm³ at 20 °C | 1.025–1.499 | same table, sulfuric acid density |
+//! | [`IndexScale`] | nD | any index ≥ 1 | nD itself |
 //! | [`UserScale`] | user's | user's | a [`LinearTable`] of the user's own |
 //!
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
@@ -434,6 +435,25 @@ impl<S: Scalar> TradeScale<S> for BatteryAcidDensity {
     }
     fn unit(&self) -> &'static str {
         "g/cm³"
+    }
+}
+
+/// nD at 20 °C shown as itself: the scale of an instrument that displays the
+/// refractive index (and the neutral choice in simulations and tests). Any
+/// valid index (finite, at least 1) is in range.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct IndexScale;
+
+impl<S: Scalar> TradeScale<S> for IndexScale {
+    fn value_at(&self, nd20: S) -> Result<S, Error> {
+        crate::refraction::check_index(nd20)
+    }
+    fn nd20_at(&self, value: S) -> Result<S, Error> {
+        crate::refraction::check_index(value)
+    }
+    fn unit(&self) -> &'static str {
+        "nD"
     }
 }
 

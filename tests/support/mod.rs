@@ -13,7 +13,8 @@ use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
-use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+pub use embedded_optics::refractometer::scales::IndexScale;
+use embedded_optics::refractometer::{SampleCompensation, WavelengthCorrection};
 use embedded_optics::{Error, Scalar};
 
 pub const ND_LINE: f64 = 589.3;
@@ -69,17 +70,6 @@ impl<S: Scalar> SampleCompensation<S> for LinearSample {
         nd.sub(S::from_f64(SAMPLE_DN_DT * (t - 20.0))?)
     }
 }
-impl<S: Scalar> TradeScale<S> for LinearSample {
-    fn value_at(&self, nd20: S) -> Result<S, Error> {
-        Ok(nd20)
-    }
-    fn nd20_at(&self, value: S) -> Result<S, Error> {
-        Ok(value)
-    }
-    fn unit(&self) -> &'static str {
-        "nD"
-    }
-}
 
 /// Sample index at the LED wavelength and `t` for a sample of nD20 `nd20`
 /// (the double's inverse, written out).
@@ -130,7 +120,7 @@ pub fn scene(snr: f64) -> SensorScene {
     }
 }
 
-pub type Chain<S> = Instrument<S, LinearGlass, LinearSample, LinearSample, LinearSample>;
+pub type Chain<S> = Instrument<S, LinearGlass, LinearSample, LinearSample, IndexScale>;
 
 pub fn instrument<S: Scalar>() -> Chain<S> {
     Instrument::new(
@@ -138,7 +128,7 @@ pub fn instrument<S: Scalar>() -> Chain<S> {
         LinearGlass,
         LinearSample,
         LinearSample,
-        LinearSample,
+        IndexScale,
     )
     .expect("description is valid")
 }
