@@ -12,14 +12,7 @@ use embedded_optics::autofocus::driver::{
 
 /// A 10-bit part with no register byte: code in bits 13..4 of a 16-bit word,
 /// nothing else set: a layout common among 10-bit VCM drivers.
-const TEN_BIT: BusLayout = BusLayout {
-    address: 0x0C,
-    code_bits: 10,
-    register: None,
-    shift: 4,
-    fixed_bits: 0,
-    data_bytes: 2,
-};
+const TEN_BIT: BusLayout = BusLayout::ten_bit_word(0x0C);
 
 /// 8-bit part behind a register byte, one data byte.
 const EIGHT_BIT: BusLayout = BusLayout {

@@ -327,14 +327,7 @@ fn study_through_driver(seed: u64) -> (Figures, u64) {
     let lens = LensModel::<f64>::phone_module();
     let cfg = config(&lens);
     let model = lens.factory_calibration().unwrap();
-    let layout = BusLayout {
-        address: 0x0C,
-        code_bits: 10,
-        register: None,
-        shift: 4,
-        fixed_bits: 0,
-        data_bytes: 2,
-    };
+    let layout = BusLayout::ten_bit_word(0x0C);
     let motion = MotionProfile {
         max_step_codes: 64,
         resonance_hz: 125,

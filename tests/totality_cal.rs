@@ -2,6 +2,8 @@
 //! inputs (NaN, infinities, garbage bytes), return a sane `Result` and never
 //! panic.
 
+mod support;
+
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
@@ -19,23 +21,10 @@ use embedded_optics::refractometer::{SampleCompensation, TradeScale};
 use embedded_optics::{Error, Quantity, Scalar};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
+use support::inputs::{any_float, to};
 
-fn any_input() -> impl Strategy<Value = f64> {
-    prop_oneof![
-        proptest::num::f64::ANY,
-        Just(f64::NAN),
-        Just(f64::INFINITY),
-        Just(f64::NEG_INFINITY),
-        Just(0.0),
-        Just(-0.0),
-        -100.0..100.0f64,
-        1.3..1.52f64,
-        0.0..90.0f64,
-    ]
-}
-
-fn to<S: Scalar>(x: f64) -> Option<S> {
-    S::from_f64(x).ok()
+fn any_input() -> BoxedStrategy<f64> {
+    any_float(&[-100.0..100.0, 1.3..1.52, 0.0..90.0])
 }
 
 /// A value, when there is one, is finite and inside `[lo, hi]`.

@@ -14,26 +14,13 @@ use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
+use support::inputs::any_float;
 use support::*;
 
 /// Any float, the awkward ones (NaN, infinities, signed zero, extremes) often,
 /// and the ranges the chain works in (indices, wavelengths, pixels).
-fn any_f64() -> impl Strategy<Value = f64> {
-    let awkward = proptest::sample::select(vec![
-        f64::NAN,
-        f64::INFINITY,
-        f64::NEG_INFINITY,
-        -0.0,
-        f64::MAX,
-        f64::MIN_POSITIVE,
-    ]);
-    prop_oneof![
-        proptest::num::f64::ANY,
-        awkward,
-        -5.0..5.0f64,
-        1.0..2.0f64,
-        0.0..5000.0f64,
-    ]
+fn any_f64() -> BoxedStrategy<f64> {
+    any_float(&[-5.0..5.0, 1.0..2.0, 0.0..5000.0])
 }
 
 fn direction() -> impl Strategy<Value = EdgeDirection> {

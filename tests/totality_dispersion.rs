@@ -2,6 +2,8 @@
 //! infinities included): a sane `Result`, never a panic; every input outside a
 //! model's validity range is a named error.
 
+mod support;
+
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::media::{air, glass::Glass, seawater, water};
 use embedded_optics::optics::chromatic::{self, Achromat};
@@ -11,36 +13,15 @@ use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDisper
 use embedded_optics::{Error, Quantity, Scalar, optics::prism};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
+use support::inputs::{any_float, finite, to};
 
-fn any_input() -> impl Strategy<Value = f64> {
-    prop_oneof![
-        proptest::num::f64::ANY,
-        Just(f64::NAN),
-        Just(f64::INFINITY),
-        Just(f64::NEG_INFINITY),
-        Just(0.0),
-        Just(-0.0),
-        -5.0..5.0f64,
-        0.2..1.2f64,
-        1.3..1.9f64,
-        0.0..100.0f64,
-        300.0..900.0f64,
-    ]
-}
-
-fn to<S: Scalar>(x: f64) -> Option<S> {
-    S::from_f64(x).ok()
+fn any_input() -> BoxedStrategy<f64> {
+    any_float(&[-5.0..5.0, 0.2..1.2, 1.3..1.9, 0.0..100.0, 300.0..900.0])
 }
 
 fn index<S: Scalar>(r: Result<S, Error>) {
     if let Ok(v) = r {
         assert!(v.to_f64() >= 1.0 && v.to_f64() <= 4.5, "{v:?}");
-    }
-}
-
-fn finite<S: Scalar>(r: Result<S, Error>) {
-    if let Ok(v) = r {
-        assert!(v.is_finite(), "{v:?}");
     }
 }
 

@@ -2,6 +2,8 @@
 //! fed arbitrary inputs (NaN and infinities included), returns a sane `Result`
 //! and never panics.
 
+mod support;
+
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::{ErrorType, I2c, Operation};
 use embedded_optics::autofocus::actuator::{
@@ -15,37 +17,12 @@ use embedded_optics::autofocus::sim::{LensModel, Scene};
 use embedded_optics::{Scalar, optics::lens};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
+use support::inputs::{any_float, finite, to};
 
-/// Special values, every float, and the scales the routines work at (metres of a
-/// phone module, micrometres of blur, dioptres).
-const SPECIAL: [f64; 6] = [
-    f64::NAN,
-    f64::INFINITY,
-    f64::NEG_INFINITY,
-    0.0,
-    -0.0,
-    1e-300,
-];
-
-fn any_input() -> impl Strategy<Value = f64> {
-    prop_oneof![
-        proptest::sample::select(SPECIAL.to_vec()),
-        proptest::num::f64::ANY,
-        -5.0..5.0f64,
-        0.0..0.2f64,
-        0.0..1e-4f64,
-        1.0..30.0f64,
-    ]
-}
-
-fn to<S: Scalar>(x: f64) -> Option<S> {
-    S::from_f64(x).ok()
-}
-
-fn finite<S: Scalar>(r: Result<S, embedded_optics::Error>) {
-    if let Ok(v) = r {
-        assert!(v.is_finite(), "{v:?}");
-    }
+/// Every float, the awkward values, and the scales the routines work at (metres
+/// of a phone module, micrometres of blur, dioptres).
+fn any_input() -> BoxedStrategy<f64> {
+    any_float(&[-5.0..5.0, 0.0..0.2, 0.0..1e-4, 1.0..30.0])
 }
 
 fn distance<S: Scalar>(d: SubjectDistance<S>) {

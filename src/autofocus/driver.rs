@@ -60,6 +60,25 @@ pub struct BusLayout {
 }
 
 impl BusLayout {
+    /// A layout common among 10-bit VCM drivers: no register byte, the code in
+    /// bits 13..4 of one 16-bit big-endian word (code << 4), no other bits set.
+    ///
+    /// ```
+    /// use embedded_optics::autofocus::driver::BusLayout;
+    /// let layout = BusLayout::ten_bit_word(0x0C);
+    /// assert_eq!((layout.shift, layout.data_bytes, layout.max_code()), (4, 2, 1023));
+    /// ```
+    pub const fn ten_bit_word(address: u8) -> Self {
+        BusLayout {
+            address,
+            code_bits: 10,
+            register: None,
+            shift: 4,
+            fixed_bits: 0,
+            data_bytes: 2,
+        }
+    }
+
     /// Largest code the layout can carry.
     pub fn max_code(&self) -> u16 {
         ((1u32 << u32::from(self.code_bits.min(12))) - 1) as u16

@@ -99,190 +99,150 @@ const BRINE_ND: [f64; 14] = [
     1.3757, 1.3795,
 ];
 
-pub struct BrineFromNd;
-impl Case for BrineFromNd {
-    const NAME: &'static str = "refractometer::scales::SaltBrine::value_at";
-    const UNIT: &'static str = "% NaCl";
-    const DOMAIN: &'static str = "nD 1.33299–1.3795 (0–26 %)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-12,
-        f32: 2.0e-4,
-        i32f32: 3.0e-6,
-        i8f24: 6.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.33299, 1.3795, 601).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(invert(
-            |w| uniform_cubic(&BRINE_ND, 0.0, 2.0, w),
-            x[0],
-            0.0,
-            26.0,
-        ))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        SaltBrine.value_at(x[0])
+case! {
+    pub struct BrineFromNd;
+    name: "refractometer::scales::SaltBrine::value_at",
+    unit: "% NaCl",
+    domain: "nD 1.33299–1.3795 (0–26 %)",
+    budget: Budget { f64: 1.0e-12, f32: 2.0e-4, i32f32: 3.0e-6, i8f24: 6.0e-4 },
+    inputs: {
+    span(1.33299, 1.3795, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(invert(
+        |w| uniform_cubic(&BRINE_ND, 0.0, 2.0, w),
+        x[0],
+        0.0,
+        26.0,
+    ))
+    },
+    eval(x): {
+    SaltBrine.value_at(x[0])
     }
 }
 
-pub struct GlycolMassFromNd;
-impl Case for GlycolMassFromNd {
-    const NAME: &'static str = "refractometer::scales::EthyleneGlycolMass::value_at";
-    const UNIT: &'static str = "% by mass";
-    const DOMAIN: &'static str = "nD 1.33299–1.3931 (0–60 %)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-12,
-        f32: 2.0e-4,
-        i32f32: 3.0e-6,
-        i8f24: 6.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(glycol_mass(x[0]))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        EthyleneGlycolMass.value_at(x[0])
+case! {
+    pub struct GlycolMassFromNd;
+    name: "refractometer::scales::EthyleneGlycolMass::value_at",
+    unit: "% by mass",
+    domain: "nD 1.33299–1.3931 (0–60 %)",
+    budget: Budget { f64: 1.0e-12, f32: 2.0e-4, i32f32: 3.0e-6, i8f24: 6.0e-4 },
+    inputs: {
+    span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(glycol_mass(x[0]))
+    },
+    eval(x): {
+    EthyleneGlycolMass.value_at(x[0])
     }
 }
 
-pub struct GlycolFreezingFromNd;
-impl Case for GlycolFreezingFromNd {
-    const NAME: &'static str = "refractometer::scales::EthyleneGlycolFreezingPoint::value_at";
-    const UNIT: &'static str = "°C";
-    const DOMAIN: &'static str = "nD 1.33299–1.3931 (0 to −51.2 °C)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-11,
-        f32: 3.0e-4,
-        i32f32: 5.0e-6,
-        i8f24: 1.0e-3,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(-uniform_cubic(
-            &GLYCOL_DEPRESSION,
-            0.0,
-            4.0,
-            glycol_mass(x[0]),
-        ))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        EthyleneGlycolFreezingPoint.value_at(x[0])
+case! {
+    pub struct GlycolFreezingFromNd;
+    name: "refractometer::scales::EthyleneGlycolFreezingPoint::value_at",
+    unit: "°C",
+    domain: "nD 1.33299–1.3931 (0 to −51.2 °C)",
+    budget: Budget { f64: 1.0e-11, f32: 3.0e-4, i32f32: 5.0e-6, i8f24: 1.0e-3 },
+    inputs: {
+    span(1.33299, 1.3931, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(-uniform_cubic(
+        &GLYCOL_DEPRESSION,
+        0.0,
+        4.0,
+        glycol_mass(x[0]),
+    ))
+    },
+    eval(x): {
+    EthyleneGlycolFreezingPoint.value_at(x[0])
     }
 }
 
-pub struct BatteryAcidFromNd;
-impl Case for BatteryAcidFromNd {
-    const NAME: &'static str = "refractometer::scales::BatteryAcidDensity::value_at";
-    const UNIT: &'static str = "g/cm³";
-    const DOMAIN: &'static str = "nD 1.3379–1.4077 (4–60 % by mass)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-13,
-        f32: 2.0e-6,
-        i32f32: 3.0e-8,
-        i8f24: 2.0e-6,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.3379, 1.4077, 601).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        let mass = invert(|w| uniform_cubic(&ACID_ND, 4.0, 4.0, w), x[0], 4.0, 60.0);
-        Some(uniform_cubic(&ACID_DENSITY, 4.0, 4.0, mass))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        BatteryAcidDensity.value_at(x[0])
+case! {
+    pub struct BatteryAcidFromNd;
+    name: "refractometer::scales::BatteryAcidDensity::value_at",
+    unit: "g/cm³",
+    domain: "nD 1.3379–1.4077 (4–60 % by mass)",
+    budget: Budget { f64: 1.0e-13, f32: 2.0e-6, i32f32: 3.0e-8, i8f24: 2.0e-6 },
+    inputs: {
+    span(1.3379, 1.4077, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    let mass = invert(|w| uniform_cubic(&ACID_ND, 4.0, 4.0, w), x[0], 4.0, 60.0);
+    Some(uniform_cubic(&ACID_DENSITY, 4.0, 4.0, mass))
+    },
+    eval(x): {
+    BatteryAcidDensity.value_at(x[0])
     }
 }
 
-pub struct BrixFromNd;
-impl Case for BrixFromNd {
-    const NAME: &'static str = "refractometer::scales::SucroseBrix::value_at";
-    const UNIT: &'static str = "%Brix";
-    const DOMAIN: &'static str = "nD 1.33300–1.50397 (0–85 %Brix)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-12,
-        f32: 2.0e-4,
-        i32f32: 1.0e-6,
-        i8f24: 2.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.33300, 1.50397, 1001).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        (x[0] >= 1.33299 && x[0] <= 1.50398).then(|| icumsa_brix(x[0]))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        SucroseBrix.value_at(x[0])
+case! {
+    pub struct BrixFromNd;
+    name: "refractometer::scales::SucroseBrix::value_at",
+    unit: "%Brix",
+    domain: "nD 1.33300–1.50397 (0–85 %Brix)",
+    budget: Budget { f64: 1.0e-12, f32: 2.0e-4, i32f32: 1.0e-6, i8f24: 2.0e-4 },
+    inputs: {
+    span(1.33300, 1.50397, 1001).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    (x[0] >= 1.33299 && x[0] <= 1.50398).then(|| icumsa_brix(x[0]))
+    },
+    eval(x): {
+    SucroseBrix.value_at(x[0])
     }
 }
 
-pub struct NdFromBrix;
-impl Case for NdFromBrix {
-    const NAME: &'static str = "refractometer::scales::SucroseBrix::nd20_at";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "0–85 %Brix";
-    const BUDGET: Budget = Budget {
-        f64: 2.0e-15,
-        f32: 3.0e-7,
-        i32f32: 2.0e-9,
-        i8f24: 4.0e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(0.0, 85.0, 851).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(icumsa_nd(x[0]))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        SucroseBrix.nd20_at(x[0])
+case! {
+    pub struct NdFromBrix;
+    name: "refractometer::scales::SucroseBrix::nd20_at",
+    unit: "1 (index)",
+    domain: "0–85 %Brix",
+    budget: Budget { f64: 2.0e-15, f32: 3.0e-7, i32f32: 2.0e-9, i8f24: 4.0e-7 },
+    inputs: {
+    span(0.0, 85.0, 851).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(icumsa_nd(x[0]))
+    },
+    eval(x): {
+    SucroseBrix.nd20_at(x[0])
     }
 }
 
-pub struct HoneyWaterFromNd;
-impl Case for HoneyWaterFromNd {
-    const NAME: &'static str = "refractometer::scales::HoneyWater::value_at";
-    const UNIT: &'static str = "% water";
-    const DOMAIN: &'static str = "nD 1.4741–1.5043 (13–25 %)";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-13,
-        f32: 5.0e-5,
-        i32f32: 2.0e-6,
-        i8f24: 5.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.4741, 1.5043, 603).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some((-0.2681 - (x[0] - 1.0).log10()) / 0.002243)
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        HoneyWater.value_at(x[0])
+case! {
+    pub struct HoneyWaterFromNd;
+    name: "refractometer::scales::HoneyWater::value_at",
+    unit: "% water",
+    domain: "nD 1.4741–1.5043 (13–25 %)",
+    budget: Budget { f64: 1.0e-13, f32: 5.0e-5, i32f32: 2.0e-6, i8f24: 5.0e-4 },
+    inputs: {
+    span(1.4741, 1.5043, 603).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some((-0.2681 - (x[0] - 1.0).log10()) / 0.002243)
+    },
+    eval(x): {
+    HoneyWater.value_at(x[0])
     }
 }
 
-pub struct SalinityFromNd;
-impl Case for SalinityFromNd {
-    const NAME: &'static str = "refractometer::scales::Salinity::value_at";
-    const UNIT: &'static str = "‰";
-    const DOMAIN: &'static str = "nD 1.333005–1.340869 (0–43 ‰)";
-    const BUDGET: Budget = Budget {
-        f64: 2.0e-14,
-        f32: 5.0e-4,
-        i32f32: 2.0e-6,
-        i8f24: 2.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.333005, 1.340869, 787).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some((x[0] - 1.333_004_434) / 1.828_995_2e-4)
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        Salinity.value_at(x[0])
+case! {
+    pub struct SalinityFromNd;
+    name: "refractometer::scales::Salinity::value_at",
+    unit: "‰",
+    domain: "nD 1.333005–1.340869 (0–43 ‰)",
+    budget: Budget { f64: 2.0e-14, f32: 5.0e-4, i32f32: 2.0e-6, i8f24: 2.0e-4 },
+    inputs: {
+    span(1.333005, 1.340869, 787).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some((x[0] - 1.333_004_434) / 1.828_995_2e-4)
+    },
+    eval(x): {
+    Salinity.value_at(x[0])
     }
 }
 
@@ -311,28 +271,23 @@ const MUST: [(f64, f64); 21] = [
     (1.38115, 18.35),
 ];
 
-pub struct MustAlcoholFromNd;
-impl Case for MustAlcoholFromNd {
-    const NAME: &'static str = "refractometer::scales::MustPotentialAlcohol::value_at";
-    const UNIT: &'static str = "% vol";
-    const DOMAIN: &'static str = "nD 1.34783–1.38114";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-13,
-        f32: 5.0e-5,
-        i32f32: 1.0e-7,
-        i8f24: 5.0e-5,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.34783, 1.38114, 1001).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        MUST.windows(2).find_map(|w| {
-            let ((x0, y0), (x1, y1)) = (w[0], w[1]);
-            (x[0] >= x0 && x[0] <= x1).then(|| y0 + (x[0] - x0) * (y1 - y0) / (x1 - x0))
-        })
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        MustPotentialAlcohol.value_at(x[0])
+case! {
+    pub struct MustAlcoholFromNd;
+    name: "refractometer::scales::MustPotentialAlcohol::value_at",
+    unit: "% vol",
+    domain: "nD 1.34783–1.38114",
+    budget: Budget { f64: 1.0e-13, f32: 5.0e-5, i32f32: 1.0e-7, i8f24: 5.0e-5 },
+    inputs: {
+    span(1.34783, 1.38114, 1001).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    MUST.windows(2).find_map(|w| {
+        let ((x0, y0), (x1, y1)) = (w[0], w[1]);
+        (x[0] >= x0 && x[0] <= x1).then(|| y0 + (x[0] - x0) * (y1 - y0) / (x1 - x0))
+    })
+    },
+    eval(x): {
+    MustPotentialAlcohol.value_at(x[0])
     }
 }
 
@@ -402,72 +357,62 @@ impl Case for SucroseCorrection {
     }
 }
 
-pub struct LinearSampleCompensation;
-impl Case for LinearSampleCompensation {
-    const NAME: &'static str = "refractometer::compensation::LinearCompensation::to_reference";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "nD 1.33–1.50, 5–40 °C, dn/dT ±5e-3";
-    const BUDGET: Budget = Budget {
-        f64: 2.0e-16,
-        f32: 1.2e-7,
-        i32f32: 5.0e-10,
-        i8f24: 3.0e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        let mut v = Vec::new();
-        for n in span(1.33, 1.50, 11) {
-            for t in span(5.0, 40.0, 15) {
-                for k in span(-50.0, 50.0, 11) {
-                    v.push(vec![n, t, k]);
-                }
+case! {
+    pub struct LinearSampleCompensation;
+    name: "refractometer::compensation::LinearCompensation::to_reference",
+    unit: "1 (index)",
+    domain: "nD 1.33–1.50, 5–40 °C, dn/dT ±5e-3",
+    budget: Budget { f64: 2.0e-16, f32: 1.2e-7, i32f32: 5.0e-10, i8f24: 3.0e-7 },
+    inputs: {
+    let mut v = Vec::new();
+    for n in span(1.33, 1.50, 11) {
+        for t in span(5.0, 40.0, 15) {
+            for k in span(-50.0, 50.0, 11) {
+                v.push(vec![n, t, k]);
             }
         }
-        v
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(x[0] - x[2] * 1e-4 * (x[1] - 20.0))
+    v
+    },
+    reference(x): {
+    Some(x[0] - x[2] * 1e-4 * (x[1] - 20.0))
+    },
+    eval(x): {
+    LinearCompensation {
+        dn_dt_e4: x[2],
+        min_c: S::from_i32(5)?,
+        max_c: S::from_i32(40)?,
     }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        LinearCompensation {
-            dn_dt_e4: x[2],
-            min_c: S::from_i32(5)?,
-            max_c: S::from_i32(40)?,
-        }
-        .to_reference(x[0], x[1])
+    .to_reference(x[0], x[1])
     }
 }
 
-pub struct PrismIndex;
-impl Case for PrismIndex {
-    const NAME: &'static str = "refractometer::compensation::PrismTemperature::index_at";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "nD20 1.5–1.9, −20–70 °C, dn/dT −10e-6–15e-6";
-    const BUDGET: Budget = Budget {
-        f64: 2.0e-16,
-        f32: 1.2e-7,
-        i32f32: 5.0e-10,
-        i8f24: 1.2e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        let mut v = Vec::new();
-        for n in span(1.5, 1.9, 9) {
-            for t in span(-20.0, 70.0, 19) {
-                for k in span(-10.0, 15.0, 6) {
-                    v.push(vec![n, t, k]);
-                }
+case! {
+    pub struct PrismIndex;
+    name: "refractometer::compensation::PrismTemperature::index_at",
+    unit: "1 (index)",
+    domain: "nD20 1.5–1.9, −20–70 °C, dn/dT −10e-6–15e-6",
+    budget: Budget { f64: 2.0e-16, f32: 1.2e-7, i32f32: 5.0e-10, i8f24: 1.2e-7 },
+    inputs: {
+    let mut v = Vec::new();
+    for n in span(1.5, 1.9, 9) {
+        for t in span(-20.0, 70.0, 19) {
+            for k in span(-10.0, 15.0, 6) {
+                v.push(vec![n, t, k]);
             }
         }
-        v
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(x[0] + x[2] * 1e-6 * (x[1] - 20.0))
+    v
+    },
+    reference(x): {
+    Some(x[0] + x[2] * 1e-6 * (x[1] - 20.0))
+    },
+    eval(x): {
+    PrismTemperature {
+        nd20: x[0],
+        dn_dt_e6: x[2],
     }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        PrismTemperature {
-            nd20: x[0],
-            dn_dt_e6: x[2],
-        }
-        .index_at(x[1])
+    .index_at(x[1])
     }
 }
 
@@ -476,86 +421,71 @@ fn ln_r_sweep() -> Vec<Vec<f64>> {
     span(6.2, 11.5, 531).map(|x| vec![x]).collect()
 }
 
-pub struct ThermistorSteinhartHart;
-impl Case for ThermistorSteinhartHart {
-    const NAME: &'static str = "refractometer::thermistor::SteinhartHart::temperature_c";
-    const UNIT: &'static str = "°C";
-    const DOMAIN: &'static str = "ln R 6.2–11.5 (10 kΩ NTC, about −20–110 °C)";
-    const BUDGET: Budget = Budget {
-        f64: 3.0e-13,
-        f32: 1.0e-4,
-        i32f32: 1.0e-7,
-        i8f24: 3.0e-5,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        ln_r_sweep()
+case! {
+    pub struct ThermistorSteinhartHart;
+    name: "refractometer::thermistor::SteinhartHart::temperature_c",
+    unit: "°C",
+    domain: "ln R 6.2–11.5 (10 kΩ NTC, about −20–110 °C)",
+    budget: Budget { f64: 3.0e-13, f32: 1.0e-4, i32f32: 1.0e-7, i8f24: 3.0e-5 },
+    inputs: {
+    ln_r_sweep()
+    },
+    reference(x): {
+    let l = x[0];
+    Some(1.0 / (1.129148e-3 + 2.34125e-4 * l + 8.76741e-8 * l * l * l) - 273.15)
+    },
+    eval(x): {
+    SteinhartHart {
+        a_milli: embedded_optics::lit!(S, 1.129148),
+        b_ten_thousandths: embedded_optics::lit!(S, 2.34125),
+        c_ten_millionths: embedded_optics::lit!(S, 0.876741),
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        let l = x[0];
-        Some(1.0 / (1.129148e-3 + 2.34125e-4 * l + 8.76741e-8 * l * l * l) - 273.15)
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        SteinhartHart {
-            a_milli: embedded_optics::lit!(S, 1.129148),
-            b_ten_thousandths: embedded_optics::lit!(S, 2.34125),
-            c_ten_millionths: embedded_optics::lit!(S, 0.876741),
-        }
-        .temperature_c(x[0])
+    .temperature_c(x[0])
     }
 }
 
-pub struct ThermistorBeta;
-impl Case for ThermistorBeta {
-    const NAME: &'static str = "refractometer::thermistor::Beta::temperature_c";
-    const UNIT: &'static str = "°C";
-    const DOMAIN: &'static str = "ln R 6.2–11.5, β 3950 K, 10 kΩ at 25 °C";
-    const BUDGET: Budget = Budget {
-        f64: 3.0e-13,
-        f32: 1.0e-4,
-        i32f32: 1.0e-6,
-        i8f24: 2.0e-4,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        ln_r_sweep()
+case! {
+    pub struct ThermistorBeta;
+    name: "refractometer::thermistor::Beta::temperature_c",
+    unit: "°C",
+    domain: "ln R 6.2–11.5, β 3950 K, 10 kΩ at 25 °C",
+    budget: Budget { f64: 3.0e-13, f32: 1.0e-4, i32f32: 1.0e-6, i8f24: 2.0e-4 },
+    inputs: {
+    ln_r_sweep()
+    },
+    reference(x): {
+    Some(1.0 / (1.0 / 298.15 + (x[0] - 10_000f64.ln()) / 3950.0) - 273.15)
+    },
+    eval(x): {
+    Beta {
+        beta_k: 3950,
+        r0_ohms: 10_000,
+        t0_c: S::from_i32(25)?,
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        Some(1.0 / (1.0 / 298.15 + (x[0] - 10_000f64.ln()) / 3950.0) - 273.15)
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        Beta {
-            beta_k: 3950,
-            r0_ohms: 10_000,
-            t0_c: S::from_i32(25)?,
-        }
-        .temperature_c(x[0])
+    .temperature_c(x[0])
     }
 }
 
-pub struct RecordCorrection;
-impl Case for RecordCorrection {
-    const NAME: &'static str = "refractometer::record::CalibrationRecord::correct";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "nD 1.30–1.70, c0 −0.01, c1 1.004, c2 −3.2e-4";
-    const BUDGET: Budget = Budget {
-        f64: 1.0e-15,
-        f32: 5.0e-7,
-        i32f32: 2.0e-9,
-        i8f24: 6.0e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        span(1.30, 1.70, 401).map(|x| vec![x]).collect()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        let r = record();
-        let (c0, c1, c2) = (
-            r.c0.to_num::<f64>(),
-            r.c1.to_num::<f64>(),
-            r.c2.to_num::<f64>(),
-        );
-        Some(c0 + c1 * x[0] + c2 * x[0] * x[0])
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        record().correct(x[0])
+case! {
+    pub struct RecordCorrection;
+    name: "refractometer::record::CalibrationRecord::correct",
+    unit: "1 (index)",
+    domain: "nD 1.30–1.70, c0 −0.01, c1 1.004, c2 −3.2e-4",
+    budget: Budget { f64: 1.0e-15, f32: 5.0e-7, i32f32: 2.0e-9, i8f24: 6.0e-7 },
+    inputs: {
+    span(1.30, 1.70, 401).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    let r = record();
+    let (c0, c1, c2) = (
+        r.c0.to_num::<f64>(),
+        r.c1.to_num::<f64>(),
+        r.c2.to_num::<f64>(),
+    );
+    Some(c0 + c1 * x[0] + c2 * x[0] * x[0])
+    },
+    eval(x): {
+    record().correct(x[0])
     }
 }
 

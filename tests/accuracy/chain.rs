@@ -35,31 +35,26 @@ fn angle_form(px: f64, np: f64) -> Option<f64> {
     (theta < std::f64::consts::FRAC_PI_2 && n >= 1.0).then_some(n)
 }
 
-pub struct PixelToIndex;
-impl Case for PixelToIndex {
-    const NAME: &'static str = "refractometer::geometry::Geometry::sample_index";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "pixel 0–2047 (7 µm, f 30 mm, apex 56.25°), n_prism 1.60–1.80";
-    const BUDGET: Budget = Budget {
-        f64: 2e-15,
-        f32: 5e-7,
-        i32f32: 5e-9,
-        i8f24: 6e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        let mut v = Vec::new();
-        for px in span(0.0, 2047.0, 301) {
-            for np in span(1.60, 1.80, 11) {
-                v.push(vec![px / 64.0, np]);
-            }
+case! {
+    pub struct PixelToIndex;
+    name: "refractometer::geometry::Geometry::sample_index",
+    unit: "1 (index)",
+    domain: "pixel 0–2047 (7 µm, f 30 mm, apex 56.25°), n_prism 1.60–1.80",
+    budget: Budget { f64: 2e-15, f32: 5e-7, i32f32: 5e-9, i8f24: 6e-7 },
+    inputs: {
+    let mut v = Vec::new();
+    for px in span(0.0, 2047.0, 301) {
+        for np in span(1.60, 1.80, 11) {
+            v.push(vec![px / 64.0, np]);
         }
-        v
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        angle_form(received_px(x[0]), x[1])
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        Geometry::<S>::new(&DESIGN)?.sample_index(position_q16(x[0]), x[1])
+    v
+    },
+    reference(x): {
+    angle_form(received_px(x[0]), x[1])
+    },
+    eval(x): {
+    Geometry::<S>::new(&DESIGN)?.sample_index(position_q16(x[0]), x[1])
     }
 }
 
@@ -93,40 +88,35 @@ impl Case for PixelSlope {
     }
 }
 
-pub struct CorrectionApply;
-impl Case for CorrectionApply {
-    const NAME: &'static str = "refractometer::geometry::Correction::apply";
-    const UNIT: &'static str = "1 (index)";
-    const DOMAIN: &'static str = "n 1.30–1.55; c0 ±0.05, c1 0.95–1.05, c2 ±0.02";
-    const BUDGET: Budget = Budget {
-        f64: 1e-15,
-        f32: 5e-7,
-        i32f32: 2e-9,
-        i8f24: 3e-7,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        let mut v = Vec::new();
-        for n in span(1.30, 1.55, 26) {
-            for c0 in span(-0.05, 0.05, 5) {
-                for c1 in span(0.95, 1.05, 5) {
-                    for c2 in span(-0.02, 0.02, 5) {
-                        v.push(vec![n, c0, c1, c2]);
-                    }
+case! {
+    pub struct CorrectionApply;
+    name: "refractometer::geometry::Correction::apply",
+    unit: "1 (index)",
+    domain: "n 1.30–1.55; c0 ±0.05, c1 0.95–1.05, c2 ±0.02",
+    budget: Budget { f64: 1e-15, f32: 5e-7, i32f32: 2e-9, i8f24: 3e-7 },
+    inputs: {
+    let mut v = Vec::new();
+    for n in span(1.30, 1.55, 26) {
+        for c0 in span(-0.05, 0.05, 5) {
+            for c1 in span(0.95, 1.05, 5) {
+                for c2 in span(-0.02, 0.02, 5) {
+                    v.push(vec![n, c0, c1, c2]);
                 }
             }
         }
-        v
     }
-    fn reference(x: &[f64]) -> Option<f64> {
-        let r = x[1] + x[2] * x[0] + x[3] * x[0] * x[0];
-        (1.0..=4.5).contains(&r).then_some(r)
+    v
+    },
+    reference(x): {
+    let r = x[1] + x[2] * x[0] + x[3] * x[0] * x[0];
+    (1.0..=4.5).contains(&r).then_some(r)
+    },
+    eval(x): {
+    Correction {
+        c0: x[1],
+        c1: x[2],
+        c2: x[3],
     }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        Correction {
-            c0: x[1],
-            c1: x[2],
-            c2: x[3],
-        }
-        .apply(x[0])
+    .apply(x[0])
     }
 }

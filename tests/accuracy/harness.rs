@@ -154,3 +154,52 @@ pub fn table(rows: &[Row]) -> String {
 pub fn span(lo: f64, hi: f64, n: usize) -> impl Iterator<Item = f64> + Clone {
     (0..n).map(move |i| lo + (hi - lo) * i as f64 / (n - 1) as f64)
 }
+
+/// `span` collected, for building grids.
+pub fn lin(lo: f64, hi: f64, n: usize) -> Vec<f64> {
+    span(lo, hi, n).collect()
+}
+
+/// Every combination of the given axes (the first axis varies slowest).
+pub fn grid(axes: &[Vec<f64>]) -> Vec<Vec<f64>> {
+    axes.iter().fold(vec![vec![]], |acc, axis| {
+        acc.iter()
+            .flat_map(|p| {
+                axis.iter().map(move |&x| {
+                    let mut q = p.clone();
+                    q.push(x);
+                    q
+                })
+            })
+            .collect()
+    })
+}
+
+/// One sweep, written as its data: the struct, its name, unit and domain for the
+/// table, its budget, the inputs, the independent reference and the routine.
+/// Expands to a unit struct implementing [`Case`].
+macro_rules! case {
+    (
+        $(#[$meta:meta])*
+        pub struct $name:ident;
+        name: $n:expr,
+        unit: $u:expr,
+        domain: $d:expr,
+        budget: $b:expr,
+        inputs: $inputs:block,
+        reference($rx:ident): $reference:block,
+        eval($ex:ident): $eval:block
+    ) => {
+        $(#[$meta])*
+        pub struct $name;
+        impl $crate::harness::Case for $name {
+            const NAME: &'static str = $n;
+            const UNIT: &'static str = $u;
+            const DOMAIN: &'static str = $d;
+            const BUDGET: $crate::harness::Budget = $b;
+            fn inputs() -> Vec<Vec<f64>> $inputs
+            fn reference($rx: &[f64]) -> Option<f64> $reference
+            fn eval<S: embedded_optics::Scalar>($ex: &[S]) -> Result<S, embedded_optics::Error> $eval
+        }
+    };
+}

@@ -4,11 +4,12 @@
 //! Regenerate the published table with
 //! `UPDATE_ACCURACY=1 cargo test --test accuracy`.
 
+#[macro_use]
+mod harness;
 mod afint;
 mod cal;
 mod chain;
 mod dispersion;
-mod harness;
 mod lens;
 mod refraction;
 mod scalar;

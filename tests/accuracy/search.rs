@@ -54,27 +54,22 @@ impl Case for PeakParabolic {
     }
 }
 
-pub struct PeakGaussian;
-impl Case for PeakGaussian {
-    const NAME: &'static str = "autofocus::search::interpolate_peak (Gaussian)";
-    const UNIT: &'static str = "sample spacings";
-    const DOMAIN: &'static str = "Gaussian, centre −0.5…0.5, σ 0.6–3 spacings";
-    const BUDGET: Budget = Budget {
-        f64: 1e-13,
-        f32: 1e-6,
-        i32f32: 3e-9,
-        i8f24: 1e-6,
-    };
-    fn inputs() -> Vec<Vec<f64>> {
-        vertex_width_grid()
-    }
-    fn reference(x: &[f64]) -> Option<f64> {
-        let [l, c, r] = gaussian(x[0], x[1]).map(|v| (v as f64).ln());
-        Some(0.5 * (l - r) / (l - 2.0 * c + r))
-    }
-    fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
-        let [l, c, r] = gaussian(x[0].to_f64(), x[1].to_f64());
-        interpolate_peak(l, c, r, PeakFit::Gaussian)
+case! {
+    pub struct PeakGaussian;
+    name: "autofocus::search::interpolate_peak (Gaussian)",
+    unit: "sample spacings",
+    domain: "Gaussian, centre −0.5…0.5, σ 0.6–3 spacings",
+    budget: Budget { f64: 1e-13, f32: 1e-6, i32f32: 3e-9, i8f24: 1e-6 },
+    inputs: {
+    vertex_width_grid()
+    },
+    reference(x): {
+    let [l, c, r] = gaussian(x[0], x[1]).map(|v| (v as f64).ln());
+    Some(0.5 * (l - r) / (l - 2.0 * c + r))
+    },
+    eval(x): {
+    let [l, c, r] = gaussian(x[0].to_f64(), x[1].to_f64());
+    interpolate_peak(l, c, r, PeakFit::Gaussian)
     }
 }
 

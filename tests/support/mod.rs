@@ -8,6 +8,8 @@
 //! the chain's optics and arithmetic, not the models.
 #![allow(dead_code)]
 
+pub mod inputs;
+
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};

@@ -138,14 +138,7 @@ pub fn refractometer_run<S: Scalar, P: Copy + Into<i32>>(
 
 /// The camera rig's actuator at 0x0C: a 10-bit code in bits 13..4 of a 16-bit
 /// big-endian word (code << 4), a layout common among 10-bit VCM drivers.
-pub const LAYOUT: BusLayout = BusLayout {
-    address: 0x0C,
-    code_bits: 10,
-    register: None,
-    shift: 4,
-    fixed_bits: 0,
-    data_bytes: 2,
-};
+pub const LAYOUT: BusLayout = BusLayout::ten_bit_word(0x0C);
 /// Steps of at most 64 codes, one 125 Hz period of settling after each.
 pub const MOTION: MotionProfile = MotionProfile {
     max_step_codes: 64,
