@@ -196,11 +196,11 @@ fn chain_frames() -> Vec<Vec<u16>> {
     use embedded_optics::media::water::Water;
     use embedded_optics::media::{IndexReference, Medium};
     use embedded_optics::refractometer::compensation::SucroseCompensation;
-    use embedded_optics::rng::Rng;
     use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
     use embedded_optics::refractometer::scales::SucroseBrix;
     use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
     use embedded_optics::refractometer::{TradeScale, WavelengthCorrection};
+    use embedded_optics::rng::Rng;
     let led = chains::LED_NM / 1000.0;
     let scene = SensorScene {
         geometry: chains::GEOMETRY,

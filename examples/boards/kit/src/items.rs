@@ -25,9 +25,9 @@ use embedded_optics::autofocus::focus::SubjectDistance;
 use embedded_optics::autofocus::metric::{Roi, tenengrad};
 use embedded_optics::autofocus::search::{FocusSearch, Step};
 use embedded_optics::autofocus::sim::LensModel;
-use embedded_optics::optics::fresnel::{reflectance, reflectance_from_cosine};
 use embedded_optics::lit;
 use embedded_optics::media::Medium;
+use embedded_optics::optics::fresnel::{reflectance, reflectance_from_cosine};
 use embedded_optics::optics::refraction::{
     critical_angle, sample_index_from_critical_angle, sample_index_from_critical_sine,
 };
