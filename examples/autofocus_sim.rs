@@ -6,10 +6,10 @@
 //!
 //! `cargo run --example autofocus_sim`
 
-use embedded_optics::actuator::OperatingConditions;
-use embedded_optics::af_assist::{PhaseDetectCalibration, phase_detect_target};
-use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
-use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
+use embedded_optics::autofocus::actuator::OperatingConditions;
+use embedded_optics::autofocus::assist::{PhaseDetectCalibration, phase_detect_target};
+use embedded_optics::autofocus::search::{FocusSearch, SearchConfig, Step};
+use embedded_optics::autofocus::sim::{LensModel, Scene, SimCamera};
 
 fn main() {
     // Our fictional camera rig photographs a label 35 cm away (2.857 dioptres).

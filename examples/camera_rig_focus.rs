@@ -11,16 +11,16 @@
 
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::{ErrorType, I2c, Operation};
-use embedded_optics::actuator::{
+use embedded_optics::autofocus::actuator::{
     ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture,
 };
-use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
-use embedded_optics::af_assist::{RangeSensorMount, range_sensor_target};
-use embedded_optics::focus::{
+use embedded_optics::autofocus::assist::{RangeSensorMount, range_sensor_target};
+use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+use embedded_optics::autofocus::focus::{
     SubjectDistance, circle_of_confusion_from_pitch, hyperfocal_distance, hyperfocal_extension,
     plan_focus_sweep,
 };
-use embedded_optics::focus_search::SearchConfig;
+use embedded_optics::autofocus::search::SearchConfig;
 use embedded_optics::{Error, Scalar};
 use fixed::types::I8F24;
 

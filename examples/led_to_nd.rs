@@ -7,8 +7,8 @@
 
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::WaterTable;
-use embedded_optics::medium::{IndexReference, Medium};
-use embedded_optics::refraction::sample_index_from_critical_sine;
+use embedded_optics::media::{IndexReference, Medium};
+use embedded_optics::optics::refraction::sample_index_from_critical_sine;
 use embedded_optics::refractometer::WavelengthCorrection;
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 use fixed::types::I32F32;
@@ -16,7 +16,8 @@ use fixed::types::I32F32;
 fn main() -> Result<(), embedded_optics::Error> {
     let led_um = I32F32::from_num(0.590);
     let temperature = I32F32::from_num(26.5);
-    // Invented prism datasheet: nd 1.7174, Vd 29.5, dn/dT +4.0e-6/K.
+    // Prism of glass code 717295 (a dense flint: nd 1.7174, Vd 29.5, from memory),
+    // dn/dT +4.0e-6/K (the order of dense flints, from memory).
     let prism = Glass::from_nd_vd(
         I32F32::from_num(1.7174),
         I32F32::from_num(29.5),

@@ -7,7 +7,7 @@
 //!
 //! Run: `cargo run --example prism_readout`
 
-use embedded_optics::refraction::{critical_angle, sample_index_from_critical_angle};
+use embedded_optics::optics::refraction::{critical_angle, sample_index_from_critical_angle};
 use embedded_optics::{Error, Scalar};
 use fixed::types::I8F24;
 

@@ -143,7 +143,7 @@ pub enum Error {
     /// The bright-dark boundary on a line-sensor frame could not be measured; the
     /// fault says why (no light, no boundary, low contrast, saturated, at the array's end,
     /// more than one boundary).
-    Boundary(crate::refractometer::boundary::BoundaryFault),
+    Boundary(BoundaryFault),
 }
 
 impl fmt::Display for Error {
@@ -176,3 +176,54 @@ impl fmt::Display for Error {
 }
 
 impl core::error::Error for Error {}
+
+/// Why no boundary position was given.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum BoundaryFault {
+    /// No 8-pixel block of the frame reaches [`BoundaryConfig::light_floor`](crate::refractometer::boundary::BoundaryConfig::light_floor):
+    /// the LED is off, failed or unplugged, or the sensor was not exposed; kept
+    /// apart from [`NoBoundary`](Self::NoBoundary) so that firmware can send a
+    /// lamp fault to service instead of asking the user for a sample. One
+    /// frame cannot tell it from a sample whose index matches or exceeds the
+    /// prism's, which reflects next to nothing (Fresnel): firmware confirms a
+    /// lamp fault with the prism empty (fully lit when the LED works) or by
+    /// the LED's current.
+    NoLight,
+    /// Light, but no step of even half the minimum contrast: no sample, or the
+    /// boundary is off the sensor (for a sample beyond the measuring range).
+    NoBoundary,
+    /// A step is there but its contrast is below the configured minimum or below
+    /// five times the noise: too thin a sample layer, a fogged prism.
+    LowContrast,
+    /// A pixel used for the measurement reached the saturation level: lower the
+    /// LED current or the exposure.
+    Saturated,
+    /// The boundary is too close to an end of the array to be measured: the
+    /// sample is at the edge of (or beyond) the measuring range.
+    AtArrayEnd,
+    /// A second step against the expected direction: a bubble, a particle or a
+    /// smear on the prism, or an uneven sample layer.
+    MultipleBoundaries,
+}
+
+impl fmt::Display for BoundaryFault {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(match self {
+            BoundaryFault::NoLight => {
+                "no light on the sensor (LED off or failed, or a sample at the prism's index)"
+            }
+            BoundaryFault::NoBoundary => "no boundary on the sensor",
+            BoundaryFault::LowContrast => "boundary contrast too low",
+            BoundaryFault::Saturated => "sensor saturated near the boundary",
+            BoundaryFault::AtArrayEnd => "boundary at the end of the sensor",
+            BoundaryFault::MultipleBoundaries => "more than one boundary (bubble or dirty prism)",
+        })
+    }
+}
+
+impl From<BoundaryFault> for Error {
+    fn from(f: BoundaryFault) -> Self {
+        Error::Boundary(f)
+    }
+}

@@ -4,12 +4,14 @@
 //! autofocus controllers the physics they rest on and the measurement chains
 //! built on it, in `no_std` Rust with no heap and no panics:
 //!
-//! - foundation: [`scalar`], [`error`], [`refraction`], [`fresnel`];
-//! - dispersion and media: [`dispersion`], [`media`], [`medium`], [`chromatic`], [`prism`];
-//! - the refractometer chain: [`refractometer`] (sensor frame → boundary → nD at
-//!   20 °C → %Brix and other scales, calibration record, thermistor, forward model);
-//! - lenses and autofocus: [`lens`], [`focus`], [`actuator`], [`actuator_driver`],
-//!   [`af_assist`], [`focus_metric`], [`focus_search`], [`focus_sim`].
+//! The crate reads top-down, each layer importing only from the layers below it:
+//!
+//! | layer | modules |
+//! |---|---|
+//! | instruments (peers, never importing each other) | [`refractometer`] (sensor frame → boundary → nD at 20 °C → %Brix and other scales, calibration record, thermistor, forward model); [`autofocus`] (focus geometry, actuator calibration and driver, focus metrics, search, camera-module simulation) |
+//! | physics | [`optics`] (refraction, Fresnel, dispersion, lenses, chromatic effects, prisms); [`media`] (water, seawater, air, glass, and the [`Medium`](media::Medium) seam) |
+//! | shared helpers | [`rng`] (the seeded generator of both simulations) |
+//! | numeric core | [`scalar`] (the [`Scalar`] trait, `lit!`, integer rounding), [`error`] |
 //!
 //! Every routine is written once, generic over [`Scalar`], and runs in `f32`, `f64` or fixed
 //! point ([`I32F32`](fixed::types::I32F32), [`I8F24`](fixed::types::I8F24)) with
@@ -22,7 +24,7 @@
 //! in [`accuracy`].
 //!
 //! ```
-//! use embedded_optics::refraction::{critical_sine, sample_index_from_critical_sine};
+//! use embedded_optics::optics::refraction::{critical_sine, sample_index_from_critical_sine};
 //! use fixed::types::I8F24;
 //! // A sugar solution (nD 1.3811) on a prism of index 1.72.
 //! let n_prism = I8F24::from_num(1.72);
@@ -37,23 +39,12 @@
 #[cfg(feature = "std")]
 extern crate std;
 
-pub mod actuator;
-pub mod actuator_driver;
-pub mod af_assist;
-pub mod chromatic;
-pub mod dispersion;
+pub mod autofocus;
 pub mod error;
-pub mod focus;
-pub mod focus_metric;
-pub mod focus_search;
-pub mod focus_sim;
-pub mod fresnel;
-pub mod lens;
 pub mod media;
-pub mod medium;
-pub mod prism;
-pub mod refraction;
+pub mod optics;
 pub mod refractometer;
+pub mod rng;
 pub mod scalar;
 
 pub use error::{Error, Quantity};

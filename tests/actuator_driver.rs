@@ -5,13 +5,13 @@ use embedded_hal::i2c::ErrorKind;
 use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Delay};
 use embedded_hal_mock::eh1::i2c::{Mock as I2cMock, Transaction as I2c};
 use embedded_optics::Error;
-use embedded_optics::actuator::Approach;
-use embedded_optics::actuator_driver::{
+use embedded_optics::autofocus::actuator::Approach;
+use embedded_optics::autofocus::driver::{
     BusLayout, DriverError, FocusActuatorDriver, MotionProfile,
 };
 
 /// A 10-bit part with no register byte: code in bits 13..4 of a 16-bit word,
-/// nothing else set (invented layout for the test).
+/// nothing else set: a layout common among 10-bit VCM drivers.
 const TEN_BIT: BusLayout = BusLayout {
     address: 0x0C,
     code_bits: 10,

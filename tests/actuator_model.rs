@@ -6,11 +6,11 @@
 
 #![allow(clippy::excessive_precision)] // reference digits are kept as produced
 
-use embedded_optics::actuator::{
+use embedded_optics::autofocus::actuator::{
     ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture,
 };
-use embedded_optics::af_assist::{self, PhaseDetectCalibration, RangeSensorMount};
-use embedded_optics::focus::SubjectDistance;
+use embedded_optics::autofocus::assist::{self, PhaseDetectCalibration, RangeSensorMount};
+use embedded_optics::autofocus::focus::SubjectDistance;
 use embedded_optics::{Error, Quantity, Scalar};
 use fixed::types::{I8F24, I32F32};
 
@@ -272,25 +272,25 @@ fn phase_detect_targets() {
     };
     // Lens at infinity; a subject at 20 cm needs e(0.2) = 81.63 µm: 8.163 px.
     let px = extension(0.2) / 1.0e-5;
-    let t = af_assist::phase_detect_target(&m, &cal, INF_CODE, s(px), s(0.8), &nominal).unwrap();
+    let t = assist::phase_detect_target(&m, &cal, INF_CODE, s(px), s(0.8), &nominal).unwrap();
     assert_eq!(t.code, 496);
     assert!((t.confidence.to_f64() - 0.8).abs() < 1e-6);
     // From the macro end back toward 20 cm: negative disparity.
     let px = (extension(0.2) - extension(0.1)) / 1.0e-5;
-    let t = af_assist::phase_detect_target(&m, &cal, MACRO_CODE, s(px), s(0.8), &nominal).unwrap();
+    let t = assist::phase_detect_target(&m, &cal, MACRO_CODE, s(px), s(0.8), &nominal).unwrap();
     assert_eq!(t.code, 496);
     assert_eq!(
-        af_assist::phase_detect_target(&m, &cal, INF_CODE, s(2.0), s(0.3), &nominal),
+        assist::phase_detect_target(&m, &cal, INF_CODE, s(2.0), s(0.3), &nominal),
         Err(Error::LowConfidence)
     );
     assert_eq!(
-        af_assist::phase_detect_target(&m, &cal, INF_CODE, s(17.0), s(0.9), &nominal),
+        assist::phase_detect_target(&m, &cal, INF_CODE, s(17.0), s(0.9), &nominal),
         Err(Error::OutOfRange(Quantity::Disparity))
     );
     // Past the far end of travel.
     let m = m.with_travel(290, 800).unwrap();
     assert_eq!(
-        af_assist::phase_detect_target(&m, &cal, INF_CODE, s(-5.0), s(0.9), &nominal),
+        assist::phase_detect_target(&m, &cal, INF_CODE, s(-5.0), s(0.9), &nominal),
         Err(Error::OutOfRange(Quantity::ActuatorCode))
     );
 }
@@ -302,30 +302,30 @@ fn range_sensor_parallax() {
         baseline: 0.015f64,
         axial_offset: 0.002,
     };
-    let z = af_assist::subject_distance_from_range(&mount, 0.5).unwrap();
+    let z = assist::subject_distance_from_range(&mount, 0.5).unwrap();
     assert!((z - 0.50177494935220592746831632877239621045075896509066).abs() < 1e-15);
     let mount8 = RangeSensorMount {
         baseline: s::<I8F24>(0.015),
         axial_offset: s(0.002),
     };
-    let z8 = af_assist::subject_distance_from_range(&mount8, s(0.5)).unwrap();
+    let z8 = assist::subject_distance_from_range(&mount8, s(0.5)).unwrap();
     assert!((z8.to_f64() - 0.501774949352205927).abs() < 5e-7);
     assert_eq!(
-        af_assist::subject_distance_from_range(&mount, 0.015),
+        assist::subject_distance_from_range(&mount, 0.015),
         Err(Error::OutOfRange(Quantity::Length))
     );
     // Straight to a code: the parallax-corrected distance through the model.
     let m = model::<f64>();
     let nominal = OperatingConditions::nominal();
-    let t = af_assist::range_sensor_target(&m, &mount, 0.2, 0.9, 0.5, &nominal).unwrap();
+    let t = assist::range_sensor_target(&m, &mount, 0.2, 0.9, 0.5, &nominal).unwrap();
     let z = (0.2f64 * 0.2 - 0.015 * 0.015).sqrt() + 0.002;
     assert!((f64::from(t.code) - reference_code(z)).abs() <= 0.5);
     assert_eq!(
-        af_assist::range_sensor_target(&m, &mount, 0.08, 0.9, 0.5, &nominal),
+        assist::range_sensor_target(&m, &mount, 0.08, 0.9, 0.5, &nominal),
         Err(Error::CloserThanMacro)
     );
     assert_eq!(
-        af_assist::range_sensor_target(&m, &mount, 0.2, 0.4, 0.5, &nominal),
+        assist::range_sensor_target(&m, &mount, 0.2, 0.4, 0.5, &nominal),
         Err(Error::LowConfidence)
     );
 }

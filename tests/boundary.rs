@@ -6,7 +6,8 @@ mod support;
 
 use embedded_optics::Error;
 use embedded_optics::refractometer::boundary::*;
-use embedded_optics::refractometer::forward::{Rng, SampleState, render};
+use embedded_optics::refractometer::forward::{SampleState, render};
+use embedded_optics::rng::Rng;
 
 const DARK: f64 = 300.0;
 const CONTRAST: f64 = 3000.0;

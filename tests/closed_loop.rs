@@ -8,8 +8,8 @@
 mod support;
 
 use embedded_optics::Scalar;
-use embedded_optics::refractometer::forward::Rng;
 use embedded_optics::refractometer::instrument::Averaged;
+use embedded_optics::rng::Rng;
 use fixed::types::{I8F24, I32F32};
 use std::sync::OnceLock;
 use support::*;

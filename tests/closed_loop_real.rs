@@ -17,12 +17,12 @@
 
 mod support;
 
+use embedded_optics::media::IndexReference;
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::{self, Water};
-use embedded_optics::medium::IndexReference;
 use embedded_optics::refractometer::calibration::{standard_reference, water_reference};
 use embedded_optics::refractometer::compensation::{SucroseCompensation, WaterCompensation};
-use embedded_optics::refractometer::forward::{Rng, SampleState, render};
+use embedded_optics::refractometer::forward::{SampleState, render};
 use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::instrument::{Instrument, Reading};
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, Slot, choose_slots};
@@ -30,6 +30,7 @@ use embedded_optics::refractometer::scales::{HoneyWater, SucroseBrix};
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
+use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Quantity, Scalar};
 use fixed::types::{I8F24, I32F32};
 use std::sync::OnceLock;
@@ -38,9 +39,8 @@ use support::{DESCRIPTION, LED_NM, PIXELS, scene};
 const LED_UM: f64 = LED_NM / 1000.0;
 const AIR: IndexReference = IndexReference::Air;
 
-/// The prism: a dense flint known by its datasheet figures, nd 1.7174 and
-/// Vd 29.5 (those of an SF1-type flint, from memory) and dn/dT 4.0e-6/K (the
-/// order of such flints, from memory).
+/// The prism: the dense flint of glass code 717295 (nd 1.7174, Vd 29.5, from
+/// memory) with dn/dT 4.0e-6/K (the order of such flints, from memory).
 fn prism<S: Scalar>() -> Glass<S> {
     let s = |x: f64| S::from_f64(x).unwrap();
     Glass::from_nd_vd(s(1.7174), s(29.5), s(4.0)).unwrap()

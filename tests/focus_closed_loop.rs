@@ -13,14 +13,17 @@ use core::cell::RefCell;
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::{ErrorType, I2c, Operation};
 use embedded_optics::Scalar;
-use embedded_optics::actuator::{ActuatorModel, OperatingConditions};
-use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
-use embedded_optics::af_assist::{
+use embedded_optics::autofocus::actuator::{ActuatorModel, OperatingConditions};
+use embedded_optics::autofocus::assist::{
     FocusTarget, PhaseDetectCalibration, RangeSensorMount, phase_detect_target, range_sensor_target,
 };
-use embedded_optics::focus::{SubjectDistance, hyperfocal_extension, plan_focus_sweep};
-use embedded_optics::focus_search::{FailureReason, FocusSearch, SearchConfig, Step, TravelEnd};
-use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, SimRng, run_search};
+use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+use embedded_optics::autofocus::focus::{SubjectDistance, hyperfocal_extension, plan_focus_sweep};
+use embedded_optics::autofocus::search::{
+    FailureReason, FocusSearch, SearchConfig, Step, TravelEnd,
+};
+use embedded_optics::autofocus::sim::{LensModel, Scene, SimCamera, run_search};
+use embedded_optics::rng::Rng;
 use fixed::types::{I8F24, I32F32};
 
 /// Runs per study.
@@ -145,7 +148,7 @@ impl Figures {
 }
 
 /// A random subject: vergence uniform over 0–10 dioptres (infinity to 10 cm).
-fn random_scene<S: Scalar>(rng: &mut SimRng, contrast: (f64, f64)) -> Scene<S> {
+fn random_scene<S: Scalar>(rng: &mut Rng, contrast: (f64, f64)) -> Scene<S> {
     let v = f64::from(rng.below(10_001)) / 1000.0;
     let k = contrast.0 + (contrast.1 - contrast.0) * f64::from(rng.below(1001)) / 1000.0;
     Scene {
@@ -155,7 +158,7 @@ fn random_scene<S: Scalar>(rng: &mut SimRng, contrast: (f64, f64)) -> Scene<S> {
 }
 
 /// Uniform in [−1, 1].
-fn unit(rng: &mut SimRng) -> f64 {
+fn unit(rng: &mut Rng) -> f64 {
     f64::from(rng.below(2001)) / 1000.0 - 1.0
 }
 
@@ -192,7 +195,7 @@ fn assist_target<S: Scalar>(
     model: &ActuatorModel<S>,
     scene: &Scene<S>,
     start: i32,
-    rng: &mut SimRng,
+    rng: &mut Rng,
 ) -> Option<FocusTarget<S>> {
     let nominal = OperatingConditions::nominal();
     let s = |x: f64| S::from_f64(x).unwrap();
@@ -247,7 +250,7 @@ fn study<S: Scalar>(
     assist: Assist,
 ) -> Figures {
     let model = lens.factory_calibration().unwrap();
-    let mut rng = SimRng::new(seed);
+    let mut rng = Rng::new(seed);
     let mut fig = Figures::default();
     for _ in 0..RUNS {
         let scene = random_scene::<S>(&mut rng, contrast);
@@ -337,7 +340,7 @@ fn study_through_driver(seed: u64) -> (Figures, u64) {
         resonance_hz: 125,
         settle_periods: 1,
     };
-    let mut rng = SimRng::new(seed);
+    let mut rng = Rng::new(seed);
     let mut fig = Figures::default();
     let mut settle_us = 0;
     for _ in 0..RUNS {
@@ -387,7 +390,7 @@ const HEADER: &str = "\
 # Autofocus: measured closed-loop figures
 
 Produced by `tests/focus_closed_loop.rs` on the simulated camera module of
-`focus_sim` (not on hardware); regenerate with
+`autofocus::sim` (not on hardware); regenerate with
 `UPDATE_AUTOFOCUS=1 cargo test --test focus_closed_loop`. The same test asserts
 the thresholds below and fails if this file is stale. Each study is 1000 seeded
 runs, so the figures are exactly reproducible.

@@ -1,7 +1,7 @@
 //! Every public function, fed arbitrary floats (NaN and infinities included),
 //! returns a sane `Result` and never panics.
 
-use embedded_optics::{Scalar, fresnel, refraction};
+use embedded_optics::{Scalar, optics::fresnel, optics::refraction};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
 

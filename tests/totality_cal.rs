@@ -2,7 +2,7 @@
 //! inputs (NaN, infinities, garbage bytes), return a sane `Result` and never
 //! panic.
 
-use embedded_optics::medium::{IndexReference, Medium};
+use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
 };

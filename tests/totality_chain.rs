@@ -4,12 +4,13 @@
 
 mod support;
 
-use embedded_optics::medium::Medium;
+use embedded_optics::media::Medium;
 use embedded_optics::refractometer::boundary::*;
 use embedded_optics::refractometer::calibration::{self, Standard};
-use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
+use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::{Correction, Geometry, GeometryDescription};
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
+use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;

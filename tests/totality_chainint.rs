@@ -5,8 +5,8 @@
 mod support;
 
 use embedded_optics::Scalar;
+use embedded_optics::media::IndexReference;
 use embedded_optics::media::water::Water;
-use embedded_optics::medium::IndexReference;
 use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::calibration::water_reference;
 use embedded_optics::refractometer::geometry::Correction;

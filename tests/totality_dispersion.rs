@@ -2,13 +2,13 @@
 //! infinities included): a sane `Result`, never a panic; every input outside a
 //! model's validity range is a named error.
 
-use embedded_optics::chromatic::{self, Achromat};
-use embedded_optics::dispersion::{self, Cauchy, Dispersion, Sellmeier};
+use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::media::{air, glass::Glass, seawater, water};
-use embedded_optics::medium::{IndexReference, Medium};
+use embedded_optics::optics::chromatic::{self, Achromat};
+use embedded_optics::optics::dispersion::{self, Cauchy, Dispersion, Sellmeier};
 use embedded_optics::refractometer::WavelengthCorrection;
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
-use embedded_optics::{Error, Quantity, Scalar, prism};
+use embedded_optics::{Error, Quantity, Scalar, optics::prism};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
 

@@ -4,15 +4,15 @@
 
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::{ErrorType, I2c, Operation};
-use embedded_optics::actuator::{
+use embedded_optics::autofocus::actuator::{
     ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture,
 };
-use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
-use embedded_optics::af_assist::{self, PhaseDetectCalibration, RangeSensorMount};
-use embedded_optics::focus::{self, FocusSweepPlan, SubjectDistance};
-use embedded_optics::focus_search::{FocusSearch, SearchConfig};
-use embedded_optics::focus_sim::{LensModel, Scene};
-use embedded_optics::{Scalar, lens};
+use embedded_optics::autofocus::assist::{self, PhaseDetectCalibration, RangeSensorMount};
+use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+use embedded_optics::autofocus::focus::{self, FocusSweepPlan, SubjectDistance};
+use embedded_optics::autofocus::search::{FocusSearch, SearchConfig};
+use embedded_optics::autofocus::sim::{LensModel, Scene};
+use embedded_optics::{Scalar, optics::lens};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
 
@@ -210,18 +210,18 @@ fn actuator_routines<S: Scalar>(x: [f64; 4], codes: [u16; 4], k: u8) {
                 max_disparity: b,
                 min_confidence: c,
             };
-            finite(af_assist::defocus_from_disparity(&cal, d));
-            if let Ok(t) = af_assist::phase_detect_target(&model, &cal, codes[1], d, c, &cond) {
+            finite(assist::defocus_from_disparity(&cal, d));
+            if let Ok(t) = assist::phase_detect_target(&model, &cal, codes[1], d, c, &cond) {
                 assert!(t.code <= model.max_code() && t.confidence <= S::ONE);
             }
             let mount = RangeSensorMount {
                 baseline: a,
                 axial_offset: b,
             };
-            if let Ok(z) = af_assist::subject_distance_from_range(&mount, c) {
+            if let Ok(z) = assist::subject_distance_from_range(&mount, c) {
                 assert!(z.is_finite() && z.to_f64() > 0.0);
             }
-            if let Ok(t) = af_assist::range_sensor_target(&model, &mount, c, d, b, &cond) {
+            if let Ok(t) = assist::range_sensor_target(&model, &mount, c, d, b, &cond) {
                 assert!(t.code <= model.max_code() && t.confidence <= S::ONE);
             }
         }

@@ -2,12 +2,16 @@
 //! sequences, settings and hints with NaN and infinities. No panic, typed errors,
 //! and the search always ends within its frame budget.
 
-use embedded_optics::af_assist::FocusTarget;
-use embedded_optics::focus_metric::{
+use embedded_optics::autofocus::assist::FocusTarget;
+use embedded_optics::autofocus::metric::{
     FocusMetric, Normalisation, Roi, brenner, laplacian_variance, mean_level, tenengrad,
 };
-use embedded_optics::focus_search::{FocusSearch, PeakFit, SearchConfig, Step, interpolate_peak};
-use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, run_search, textured_target_metric};
+use embedded_optics::autofocus::search::{
+    FocusSearch, PeakFit, SearchConfig, Step, interpolate_peak,
+};
+use embedded_optics::autofocus::sim::{
+    LensModel, Scene, SimCamera, run_search, textured_target_metric,
+};
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
@@ -32,7 +36,7 @@ fn any_metric() -> impl Strategy<Value = u64> {
     ]
 }
 
-fn check_metrics<P: embedded_optics::focus_metric::Pixel>(roi: &Roi<'_, P>) {
+fn check_metrics<P: embedded_optics::autofocus::metric::Pixel>(roi: &Roi<'_, P>) {
     let small = roi.width() < 3 || roi.height() < 3;
     for r in [tenengrad(roi, 0), laplacian_variance(roi)] {
         match r {

@@ -13,7 +13,7 @@ mod scenario;
 #[path = "../examples/workbench/sim.rs"]
 mod sim;
 
-use embedded_optics::focus_sim::Scene;
+use embedded_optics::autofocus::sim::Scene;
 
 const DOORBELL: &str = include_str!("../examples/scenarios/doorbell_camera.toml");
 

@@ -1,7 +1,7 @@
 //! Calibration record, thermistor, temperature compensation and trade scales,
 //! checked against published tables, check values and reference libraries.
 
-use embedded_optics::medium::{IndexReference, Medium};
+use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
 };

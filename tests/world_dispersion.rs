@@ -8,15 +8,15 @@
 
 #![allow(clippy::excessive_precision)] // reference digits are kept as produced
 
-use embedded_optics::chromatic::{self, Achromat};
-use embedded_optics::dispersion::{
+use embedded_optics::media::{IndexReference, Medium};
+use embedded_optics::media::{air, glass::Glass, seawater, water};
+use embedded_optics::optics::chromatic::{self, Achromat};
+use embedded_optics::optics::dispersion::{
     self, Cauchy, Dispersion, LINE_C_NM, LINE_D_HELIUM_NM, LINE_F_NM, Sellmeier,
 };
-use embedded_optics::media::{air, glass::Glass, seawater, water};
-use embedded_optics::medium::{IndexReference, Medium};
 use embedded_optics::refractometer::WavelengthCorrection;
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
-use embedded_optics::{Error, Scalar, prism};
+use embedded_optics::{Error, Scalar, optics::prism};
 use fixed::types::{I8F24, I32F32};
 
 /// Air-relative nD (589.3 nm) of pure water at 10, 20 and 30 °C, dry air at
@@ -159,9 +159,10 @@ fn fused_silica_malitson() {
     assert!((n30 - 1.45846368714 - 1e-4).abs() < 1e-10);
 }
 
-/// Schott catalogue Sellmeier coefficients of N-BK7 and F2 (from memory; they
+/// Published Sellmeier coefficients of the glasses coded 517642 and 620364 (nd, Vd)
+/// (from memory; they
 /// reproduce the catalogue's nd 1.51680 / Vd 64.17 and nd 1.62004 / Vd 36.37).
-fn bk7() -> Sellmeier<f64> {
+fn glass_517642() -> Sellmeier<f64> {
     Sellmeier::new(
         [1.03961212, 0.231792344, 1.01046945],
         [0.00600069867, 0.0200179144, 103.560653],
@@ -169,7 +170,7 @@ fn bk7() -> Sellmeier<f64> {
     )
     .unwrap()
 }
-fn f2() -> Sellmeier<f64> {
+fn glass_620364() -> Sellmeier<f64> {
     Sellmeier::new(
         [1.34533359, 0.209073176, 0.937357162],
         [0.00997743871, 0.0470450767, 111.886764],
@@ -180,9 +181,9 @@ fn f2() -> Sellmeier<f64> {
 
 #[test]
 fn catalogue_figures() {
-    let f = dispersion::figures(&bk7()).unwrap();
+    let f = dispersion::figures(&glass_517642()).unwrap();
     assert!((f.nd - 1.5168).abs() < 1e-6 && (f.vd - 64.17).abs() < 0.005);
-    let f = dispersion::figures(&f2()).unwrap();
+    let f = dispersion::figures(&glass_620364()).unwrap();
     assert!((f.nd - 1.62004).abs() < 1e-6 && (f.vd - 36.37).abs() < 0.005);
     // P(g,F) mpmath 0.582791691172 (catalogue 0.5828, from memory).
     assert!((f.p_gf.unwrap() - 0.582791691172).abs() < 1e-9);
@@ -193,9 +194,9 @@ fn nd_vd_estimate_error_as_documented() {
     // The two-term Cauchy from nd and Vd against the full Sellmeier law.
     // Bounds as stated on Cauchy::from_nd_vd: (law, 0.40–0.80 µm, F–C).
     for (law, wide_max, inner_max) in [
-        (bk7(), 4.3e-4, 6.5e-5),
+        (glass_517642(), 4.3e-4, 6.5e-5),
         (Sellmeier::fused_silica(), 4.3e-4, 6.5e-5),
-        (f2(), 2.2e-3, 1.3e-4),
+        (glass_620364(), 2.2e-3, 1.3e-4),
     ] {
         let f = dispersion::figures(&law).unwrap();
         let est = Cauchy::from_nd_vd(f.nd, f.vd).unwrap();
@@ -281,11 +282,11 @@ fn air_standard_and_ambient() {
 
 #[test]
 fn achromat_worked_example() {
-    // BK7 + F2 cemented achromat, f = 100 mm at d, F and C brought to one focus;
+    // 517642 + 620364 cemented achromat, f = 100 mm at d, F and C brought to one focus;
     // mpmath from the Sellmeier laws (tools/dispersion_refs.py):
     // f1 = 43.3255400871588, f2 = -76.4463219478201,
     // f(g) - f(F) = 0.172627727811511, f(d) - f(F) = -0.0499588455693925.
-    let (g1, g2) = (bk7(), f2());
+    let (g1, g2) = (glass_517642(), glass_620364());
     let a = Achromat::design(100.0, &g1, &g2).unwrap();
     assert!((a.f1 - 43.3255400871588).abs() < 1e-9, "{}", a.f1);
     assert!((a.f2 + 76.4463219478201).abs() < 1e-9, "{}", a.f2);
@@ -306,7 +307,7 @@ fn achromat_worked_example() {
     )
     .unwrap();
     assert!((s - 0.1726).abs() < 0.005, "{s}");
-    // BK7 singlet f = 100 mm: f(C) - f(F) = 1.54921682832023 (mpmath); f/V = 1.558.
+    // 517642 singlet f = 100 mm: f(C) - f(F) = 1.54921682832023 (mpmath); f/V = 1.558.
     let shift = chromatic::focal_shift(&g1, 100.0, 0.5875618, 0.4861327, 0.6562725).unwrap();
     assert!((shift - 1.54921682832023).abs() < 1e-9, "{shift}");
     let fv = chromatic::focal_shift_abbe(100.0, 64.1673362375).unwrap();
@@ -346,7 +347,7 @@ fn prism_against_mpmath() {
         Err(Error::TotalInternalReflection)
     );
     // Angular dispersion from the analytic slope equals a central difference.
-    let g = bk7();
+    let g = glass_517642();
     let dd = prism::angular_dispersion_of(&g, a, 0.5875618).unwrap();
     let h = 1e-5;
     let num = (prism::minimum_deviation(g.index_um(0.5875618 + h).unwrap(), a).unwrap()
@@ -377,8 +378,8 @@ fn wavelength_correction_to_nd() {
         assert!((nd - nd_model).abs() < abbe_max, "{led}: {nd}");
     }
     // A glass law's own index at 650 nm is mapped back to its nD by its Abbe number,
-    // within the Cauchy form's error (BK7, nD at 589.3 nm).
-    let g = bk7();
+    // within the Cauchy form's error (517642, nD at 589.3 nm).
+    let g = glass_517642();
     let vd = dispersion::figures(&g).unwrap().vd;
     let nd_true = g.index_nm(589.3).unwrap();
     let corr = AbbeDispersion::new(vd).unwrap();

@@ -2,11 +2,11 @@
 //! on images small enough to compute by hand (the hand computation is written
 //! beside each check), and the overflow bound's worst cases.
 
-use embedded_optics::focus_metric::{
+use embedded_optics::autofocus::metric::{
     FocusMetric, Normalisation, Roi, brenner, laplacian_variance, mean_level, tenengrad,
 };
-use embedded_optics::focus_search::{PeakFit, interpolate_peak};
-use embedded_optics::focus_sim::{LensModel, Scene, textured_target_metric};
+use embedded_optics::autofocus::search::{PeakFit, interpolate_peak};
+use embedded_optics::autofocus::sim::{LensModel, Scene, textured_target_metric};
 
 const RAMP: [u8; 9] = [1, 2, 3, 4, 5, 6, 7, 8, 9];
 
@@ -232,7 +232,7 @@ fn metric_model_matches_blurred_texture() {
 /// extension against independently computed values.
 #[test]
 fn vergence_extension_blur_circle_and_hyperfocal_extension() {
-    use embedded_optics::focus::{
+    use embedded_optics::autofocus::focus::{
         blur_circle_diameter, extension_ratio_for_vergence, hyperfocal_extension,
     };
     // mpmath 1.3.0, 30 digits: f=mpf('0.0042'); v=mpf('3.7'); f*v/(1-f*v)

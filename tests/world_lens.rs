@@ -6,8 +6,8 @@
 
 #![allow(clippy::excessive_precision)] // reference digits are kept as produced
 
-use embedded_optics::focus::{self, SubjectDistance};
-use embedded_optics::{Error, Scalar, lens};
+use embedded_optics::autofocus::focus::{self, SubjectDistance};
+use embedded_optics::{Error, Scalar, optics::lens};
 use fixed::types::{I8F24, I32F32};
 
 fn s<S: Scalar>(x: f64) -> S {
@@ -22,9 +22,9 @@ fn close(got: f64, want: f64, rel: f64, what: &str) {
 }
 
 #[test]
-fn hyperfocal_published_example_50mm_f8() {
+fn hyperfocal_50mm_f8_against_mpmath_and_common_practice() {
     // H = f²/(N c) + f for 50 mm, f/8, c = 0.03 mm: about 10.4 m to the
-    // f²/(Nc) term, 10.47 m with the + f term. // from memory (the usual worked example)
+    // f²/(Nc) term, 10.47 m with the + f term. // common practice (from memory)
     // mpmath: f=mpf(50); N=mpf(8); c=mpf('0.03'); f**2/(N*c)+f
     let want = 10466.666666666666666666666666666666666666666666667;
     let h: f64 = focus::hyperfocal_distance(50.0, 8.0, 0.03).unwrap();
@@ -154,10 +154,10 @@ fn depth_of_focus_against_mpmath() {
 }
 
 #[test]
-fn effective_power_published_examples() {
+fn effective_power_against_mpmath_and_common_practice() {
     // Effective-power (vertex distance) formula F' = F/(1 − d·F): a −10.00 D
     // spectacle lens at 12 mm needs −8.93 D at the cornea, a +10.00 D needs +11.36 D.
-    // // from memory (the standard contact-lens conversion example)
+    // // common practice (from memory: the usual contact-lens conversion)
     // mpmath: mpf(-10)/(1-mpf('0.012')*-10), mpf(10)/(1-mpf('0.012')*10)
     let minus: f64 = lens::power_at_vertex(-10.0, 0.012, 0.0).unwrap();
     close(
@@ -183,7 +183,7 @@ fn effective_power_published_examples() {
 }
 
 #[test]
-fn far_point_published_examples() {
+fn far_point_against_mpmath_and_common_practice() {
     // A myope with the far point at 50 cm needs −2.00 D at the eye; the far point
     // is the focal point of the correcting lens. // from memory
     // With the lens 12 mm in front: mpmath 1/(mpf('0.012')-mpf('0.5')).
@@ -274,7 +274,7 @@ fn liquid_lens_matches_two_lens_system() {
 
 #[test]
 fn lensmaker_biconvex_bk7() {
-    // N-BK7 nd = 1.5168 // from memory (glass catalogue value)
+    // glass 517642: nd = 1.5168 // from memory (glass catalogue value)
     // mpmath: 1/((mpf('1.5168')-1)*(2/mpf(50)))
     let p: f64 = lens::lensmaker_power(1.5168, 1.0, 0.02, -0.02).unwrap();
     close(

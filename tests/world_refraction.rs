@@ -7,7 +7,7 @@
 
 #![allow(clippy::excessive_precision)] // reference digits are kept as published
 
-use embedded_optics::{Error, Scalar, fresnel, refraction};
+use embedded_optics::{Error, Scalar, optics::fresnel, optics::refraction};
 use fixed::types::{I8F24, I32F32};
 
 /// (n_dense, n_rare, critical angle in degrees, source)

@@ -35,24 +35,24 @@ def sellmeier(B, C, l):
     return sqrt(1 + sum(mpf(b) * l2 / (l2 - mpf(c)) for b, c in zip(B, C)))
 
 silica = (["0.6961663", "0.4079426", "0.8974794"], [mpf("0.0684043")**2, mpf("0.1162414")**2, mpf("9.896161")**2])
-bk7 = (["1.03961212", "0.231792344", "1.01046945"], ["0.00600069867", "0.0200179144", "103.560653"])
-f2 = (["1.34533359", "0.209073176", "0.937357162"], ["0.00997743871", "0.0470450767", "111.886764"])
+g517642 = (["1.03961212", "0.231792344", "1.01046945"], ["0.00600069867", "0.0200179144", "103.560653"])
+g620364 = (["1.34533359", "0.209073176", "0.937357162"], ["0.00997743871", "0.0470450767", "111.886764"])
 d, F, C, g = mpf("0.5875618"), mpf("0.4861327"), mpf("0.6562725"), mpf("0.4358343")
-for name, gl in [("silica", silica), ("bk7", bk7), ("f2", f2)]:
+for name, gl in [("silica", silica), ("g517642", g517642), ("620364", g620364)]:
     nd, nf, nc, ng = (sellmeier(*gl, x) for x in (d, F, C, g))
     print(name, "nd", mp.nstr(nd, 12), "nF", mp.nstr(nf, 12), "nC", mp.nstr(nc, 12), "Vd", mp.nstr((nd - 1) / (nf - nc), 12), "PgF", mp.nstr((ng - nf) / (nf - nc), 12))
 
-# Achromat, f = 100 at d, BK7 + F2, F and C at one focus.
-r1, r2 = sellmeier(*bk7, d) - 1, sellmeier(*f2, d) - 1
-d1 = sellmeier(*bk7, F) - sellmeier(*bk7, C)
-d2 = sellmeier(*f2, F) - sellmeier(*f2, C)
+# Achromat, f = 100 at d, 517642 + 620364, F and C at one focus.
+r1, r2 = sellmeier(*g517642, d) - 1, sellmeier(*g620364, d) - 1
+d1 = sellmeier(*g517642, F) - sellmeier(*g517642, C)
+d2 = sellmeier(*g620364, F) - sellmeier(*g620364, C)
 k1 = 1 / (100 * (r1 - r2 * d1 / d2)); k2 = -k1 * d1 / d2
-fl = lambda l: 1 / (k1 * (sellmeier(*bk7, l) - 1) + k2 * (sellmeier(*f2, l) - 1))
+fl = lambda l: 1 / (k1 * (sellmeier(*g517642, l) - 1) + k2 * (sellmeier(*g620364, l) - 1))
 print("achromat f1", mp.nstr(1 / (k1 * r1), 15), "f2", mp.nstr(1 / (k2 * r2), 15))
 print("achromat f(g)-f(F)", mp.nstr(fl(g) - fl(F), 15), "f(d)-f(F)", mp.nstr(fl(d) - fl(F), 15), "f(0.7)-f(F)", mp.nstr(fl(mpf('0.7')) - fl(F), 15))
-# Singlet BK7 f = 100 at d: f(C) - f(F)
-fs = lambda l: 100 * r1 / (sellmeier(*bk7, l) - 1)
-print("bk7 singlet f(C)-f(F)", mp.nstr(fs(C) - fs(F), 15))
+# Singlet 517642 f = 100 at d: f(C) - f(F)
+fs = lambda l: 100 * r1 / (sellmeier(*g517642, l) - 1)
+print("517642 singlet f(C)-f(F)", mp.nstr(fs(C) - fs(F), 15))
 
 def qf(S, T, l):
     S, T, l = mpf(S), mpf(T), mpf(l)

@@ -3,9 +3,10 @@
 //! random starting positions; the report counts how often the lens ends
 //! within the depth of focus and at what cost in frames.
 
-use embedded_optics::focus::{SubjectDistance, depth_of_field};
-use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
-use embedded_optics::focus_sim::{LensModel, Scene, SimCamera, SimRng};
+use embedded_optics::autofocus::focus::{SubjectDistance, depth_of_field};
+use embedded_optics::autofocus::search::{FocusSearch, SearchConfig, Step};
+use embedded_optics::autofocus::sim::{LensModel, Scene, SimCamera};
+use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use serde::Deserialize;
 
@@ -149,7 +150,7 @@ pub struct Run {
 }
 
 /// Runs one search from `start` and records its path (the driver loop of
-/// `focus_sim::run_search`, with a record of each frame).
+/// `sim::run_search`, with a record of each frame).
 pub fn search(fs: &FocusScenario, scene: Scene<f64>, start: i32, seed: u64) -> Result<Run, Error> {
     let mut cam = SimCamera::new(fs.lens(), scene, start, seed)?;
     let mut search = FocusSearch::new(fs.config()?)?;
@@ -195,7 +196,7 @@ pub fn report(
         "\n{:<22} {:>8} {:>8} {:>6} {:>10} {:>12} {:>12}",
         "scene", "dist m", "contrast", "runs", "in focus", "mean frames", "worst defocus"
     );
-    let mut rng = SimRng::new(fs.study.seed);
+    let mut rng = Rng::new(fs.study.seed);
     let mut first = None;
     for s in &fs.scenes {
         let scene = scene_of(s);

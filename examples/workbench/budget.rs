@@ -8,7 +8,7 @@
 use crate::scenario::Scenario;
 use crate::sim::{Bench, Outcome, Unit, description, sample_nd20};
 use embedded_optics::Error;
-use embedded_optics::refractometer::forward::Rng;
+use embedded_optics::rng::Rng;
 
 /// A factor of the budget.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -35,13 +35,15 @@ fn chart<'a, 'b>(
     b
 }
 
+/// The workbench's own palette: darker, print-safe tones that stay apart in
+/// greyscale (lightness falls from first to last), chosen for these plots.
 const COLOURS: [RGBColor; 6] = [
-    RGBColor(31, 119, 180),
-    RGBColor(214, 39, 40),
-    RGBColor(44, 160, 44),
-    RGBColor(148, 103, 189),
-    RGBColor(255, 127, 14),
-    RGBColor(23, 190, 207),
+    RGBColor(0, 104, 120),  // deep teal
+    RGBColor(196, 122, 0),  // amber
+    RGBColor(122, 46, 110), // plum
+    RGBColor(92, 110, 30),  // olive
+    RGBColor(60, 78, 160),  // slate blue
+    RGBColor(168, 58, 40),  // brick
 ];
 
 /// The short line of a legend entry.

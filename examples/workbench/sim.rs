@@ -8,12 +8,12 @@
 //! them), so the budget measures the instrument, not the sample models.
 
 use crate::scenario::Scenario;
+use embedded_optics::media::IndexReference;
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::Water;
-use embedded_optics::medium::IndexReference;
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::compensation::{LinearCompensation, WaterCompensation};
-use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
+use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Averaged, Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::{
@@ -22,6 +22,7 @@ use embedded_optics::refractometer::scales::{
 };
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 
 /// The firmware's sample model, as the scenario picks it.
@@ -318,7 +319,7 @@ impl<'a> World<'a> {
         let at = |l: f64| -> Result<f64, Error> {
             match target {
                 Target::Sample(nd20) => truth_at(&self.model, nd20, l, t),
-                Target::Water => embedded_optics::medium::Medium::<f64>::index(&self.water, l, t),
+                Target::Water => embedded_optics::media::Medium::<f64>::index(&self.water, l, t),
             }
         };
         let sample = SampleState {

@@ -18,10 +18,10 @@
 //! 20 °C and 101.325 kPa and within 6e-8 over −20–50 °C, 80–120 kPa,
 //! 0.3–1.69 µm (`tools/dispersion_refs.py`, `tests/world_dispersion.rs`).
 
-use crate::dispersion::check_wavelength_um;
 use crate::error::{Error, Quantity};
-use crate::medium::{IndexReference, Medium};
-use crate::refraction::check_index;
+use crate::media::{IndexReference, Medium};
+use crate::optics::dispersion::check_wavelength_um;
+use crate::optics::refraction::check_index;
 use crate::scalar::Scalar;
 
 /// Shortest wavelength of the air model, µm.

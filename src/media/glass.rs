@@ -9,9 +9,9 @@
 //! wavelength. The linear form is what catalogues publish for a narrow range;
 //! it is accepted here over −20–80 °C.
 
-use crate::dispersion::{Cauchy, Dispersion, Sellmeier};
 use crate::error::{Error, Quantity};
-use crate::medium::{IndexReference, Medium};
+use crate::media::{IndexReference, Medium};
+use crate::optics::dispersion::{Cauchy, Dispersion, Sellmeier};
 use crate::scalar::Scalar;
 
 /// Coldest temperature a glass model accepts, °C.
@@ -57,8 +57,8 @@ impl<S: Scalar> Dispersion<S> for GlassLaw<S> {
 ///
 /// ```
 /// use embedded_optics::media::glass::Glass;
-/// use embedded_optics::medium::Medium;
-/// // A prism glass known only from its datasheet: nd 1.7174, Vd 29.5, dn/dT 4.0e-6/K.
+/// use embedded_optics::media::Medium;
+/// // A prism glass known by its code 717295 only: nd 1.7174, Vd 29.5, dn/dT 4.0e-6/K.
 /// let prism = Glass::from_nd_vd(1.7174f64, 29.5, 4.0).unwrap();
 /// let n_led = prism.index(0.590, 35.0).unwrap();
 /// assert!(n_led > 1.716 && n_led < 1.718);
@@ -132,7 +132,7 @@ impl<S: Scalar> Glass<S> {
         // (ΔT · 1e-3) · dn/dT(ppm) · 1e-3 keeps I8F24 in range and in resolution.
         let dt = t.sub(self.reference_c)?.mul(crate::lit!(S, 1e-3))?;
         let dn = dt.mul(self.dn_dt_ppm)?.mul(crate::lit!(S, 1e-3))?;
-        crate::refraction::check_index(n.add(dn)?)
+        crate::optics::refraction::check_index(n.add(dn)?)
     }
 }
 

@@ -10,9 +10,9 @@
 //! Salinity-only (0 ‰) water is better served by [`water`](super::water), which
 //! covers 0–100 °C.
 
-use crate::dispersion::check_wavelength_um;
 use crate::error::{Error, Quantity};
-use crate::medium::{IndexReference, Medium};
+use crate::media::{IndexReference, Medium};
+use crate::optics::dispersion::check_wavelength_um;
 use crate::scalar::Scalar;
 
 /// Shortest wavelength, µm.
@@ -70,14 +70,14 @@ pub fn index<S: Scalar>(salinity: S, temperature_c: S, wavelength_um: S) -> Resu
         .add(salt)?
         .add(thermal)?
         .add(spectral)?;
-    crate::refraction::check_index(n)
+    crate::optics::refraction::check_index(n)
 }
 
 /// Seawater of fixed salinity as a [`Medium`] (relative to air).
 ///
 /// ```
 /// use embedded_optics::media::seawater::Seawater;
-/// use embedded_optics::medium::Medium;
+/// use embedded_optics::media::Medium;
 /// let sea = Seawater::new(35.0f64).unwrap();
 /// assert!(sea.index(0.5893, 20.0).unwrap() > 1.339);
 /// ```

@@ -16,10 +16,10 @@
 //! 0–50 °C, read by quadratic interpolation; built once at start-up from the
 //! full model, or at compile time with [`precomputed_water!`](crate::precomputed_water).
 
-use crate::dispersion::check_wavelength_um;
 use crate::error::{Error, Quantity};
 use crate::media::air;
-use crate::medium::{IndexReference, Medium};
+use crate::media::{IndexReference, Medium};
+use crate::optics::dispersion::check_wavelength_um;
 use crate::scalar::Scalar;
 
 /// Shortest wavelength of IAPWS R9-97, µm.
@@ -124,7 +124,7 @@ pub fn index_iapws<S: Scalar>(
     let a = d.mul(f)?;
     // n² = (1 + 2A)/(1 − A)
     let n2 = a.mul(S::TWO)?.add(S::ONE)?.div(S::ONE.sub(a)?)?;
-    crate::refraction::check_index(n2.sqrt()?)
+    crate::optics::refraction::check_index(n2.sqrt()?)
 }
 
 /// Index of air-free water at 101.325 kPa relative to vacuum, 0–100 °C,
@@ -175,7 +175,7 @@ fn index_in<S: Scalar>(
 ///
 /// ```
 /// use embedded_optics::media::water::Water;
-/// use embedded_optics::medium::{IndexReference, Medium};
+/// use embedded_optics::media::{IndexReference, Medium};
 /// let water = Water::new(IndexReference::Air);
 /// let n: f64 = water.index(0.5893, 20.0).unwrap();
 /// assert!((n - 1.33299).abs() < 2e-5);
@@ -221,7 +221,7 @@ pub const TABLE_TEMPERATURE_MAX_C: f64 = 50.0;
 ///
 /// ```
 /// use embedded_optics::media::water::WaterTable;
-/// use embedded_optics::medium::IndexReference;
+/// use embedded_optics::media::IndexReference;
 /// use fixed::types::I8F24;
 /// let table = WaterTable::<I8F24>::new(I8F24::from_num(0.5893), IndexReference::Air).unwrap();
 /// let n = table.index(I8F24::from_num(20)).unwrap();
@@ -293,7 +293,7 @@ impl<S: Scalar> WaterTable<S> {
 ///
 /// ```
 /// use embedded_optics::media::water::WaterTable;
-/// use embedded_optics::medium::IndexReference;
+/// use embedded_optics::media::IndexReference;
 /// use embedded_optics::precomputed_water;
 /// use fixed::types::I8F24;
 /// static WATER_590: embedded_optics::media::water::PrecomputedWater =

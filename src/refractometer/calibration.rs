@@ -15,8 +15,8 @@
 
 use crate::error::{Error, Quantity};
 use crate::media::air;
-use crate::medium::{IndexReference, Medium};
-use crate::refraction::check_index;
+use crate::media::{IndexReference, Medium};
+use crate::optics::refraction::check_index;
 use crate::refractometer::geometry::Correction;
 use crate::refractometer::{SampleCompensation, WavelengthCorrection};
 use crate::scalar::Scalar;
@@ -52,7 +52,7 @@ impl<S: Scalar> Standard<S> {
 ///
 /// ```
 /// use embedded_optics::media::water::Water;
-/// use embedded_optics::medium::IndexReference;
+/// use embedded_optics::media::IndexReference;
 /// use embedded_optics::refractometer::calibration::water_reference;
 /// // nD of water at 20 °C relative to air: 1.33299 (common practice).
 /// for model in [Water::new(IndexReference::Air), Water::new(IndexReference::Vacuum)] {

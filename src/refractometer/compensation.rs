@@ -20,7 +20,7 @@ use super::scales::SucroseBrix;
 use super::table::{Raw, div_round};
 use crate::error::{Error, Quantity};
 use crate::lit;
-use crate::medium::Medium;
+use crate::media::Medium;
 use crate::scalar::Scalar;
 
 /// The trade tables' reference temperature, °C.
@@ -420,12 +420,12 @@ pub struct WaterCompensation<M> {
 
 impl<S: Scalar, M: Medium<S>> SampleCompensation<S> for WaterCompensation<M> {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
-        let nd = crate::refraction::check_index(nd)?;
+        let nd = crate::optics::refraction::check_index(nd)?;
         let t = temperature_c.check_range(Quantity::Temperature, S::ZERO, lit!(S, 60.0))?;
         let sodium_d = lit!(S, 0.5893);
         let n20 = self.water.index(sodium_d, lit!(S, REFERENCE_C))?;
         let nt = self.water.index(sodium_d, t)?;
-        crate::refraction::check_index(nd.add(n20.sub(nt)?)?)
+        crate::optics::refraction::check_index(nd.add(n20.sub(nt)?)?)
     }
 }
 
@@ -447,7 +447,7 @@ pub struct LinearCompensation<S> {
 
 impl<S: Scalar> SampleCompensation<S> for LinearCompensation<S> {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
-        let nd = crate::refraction::check_index(nd)?;
+        let nd = crate::optics::refraction::check_index(nd)?;
         let k = self.dn_dt_e4.check_range(
             Quantity::TemperatureCoefficient,
             lit!(S, -50.0),
@@ -466,7 +466,7 @@ impl<S: Scalar> SampleCompensation<S> for LinearCompensation<S> {
             .mul(lit!(S, 0.01))?
             .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.01))?;
-        crate::refraction::check_index(nd.sub(shift)?)
+        crate::optics::refraction::check_index(nd.sub(shift)?)
     }
 }
 
@@ -494,7 +494,7 @@ pub struct PrismTemperature<S> {
 impl<S: Scalar> PrismTemperature<S> {
     /// Prism nD at `temperature_c`.
     pub fn index_at(&self, temperature_c: S) -> Result<S, Error> {
-        let n = crate::refraction::check_index(self.nd20)?;
+        let n = crate::optics::refraction::check_index(self.nd20)?;
         let k = self.dn_dt_e6.check_range(
             Quantity::TemperatureCoefficient,
             lit!(S, -50.0),
@@ -507,6 +507,6 @@ impl<S: Scalar> PrismTemperature<S> {
             .mul(lit!(S, 0.001))?
             .mul(t.sub(lit!(S, REFERENCE_C))?)?
             .mul(lit!(S, 0.001))?;
-        crate::refraction::check_index(n.add(shift)?)
+        crate::optics::refraction::check_index(n.add(shift)?)
     }
 }

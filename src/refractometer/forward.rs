@@ -3,7 +3,7 @@
 //! board to exercise the firmware's chain without a sample.
 //!
 //! Each pixel integrates the prism-sample face's Fresnel reflectance (unpolarised,
-//! [`crate::fresnel`]) over a triangular spread of positions (pixel aperture and
+//! [`crate::optics::fresnel`]) over a triangular spread of positions (pixel aperture and
 //! optics blur) and over the LED spectrum (three-point Gauss–Hermite rule for a
 //! Gaussian line of the given FWHM; prism and sample dispersion both enter), then
 //! applies cos⁴ vignetting, per-pixel response non-uniformity, a dark level, read
@@ -14,50 +14,11 @@
 //! repeating it.
 
 use crate::error::{Error, Quantity};
-use crate::fresnel::reflectance;
-use crate::medium::Medium;
+use crate::media::Medium;
+use crate::optics::fresnel::reflectance;
 use crate::refractometer::geometry::{GeometryDescription, check_described};
+use crate::rng::Rng;
 use crate::scalar::Scalar;
-
-/// A small seeded generator (SplitMix64): reproducible noise on any target; the
-/// refractometer's forward model and the autofocus simulation share it.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct Rng(u64);
-
-impl Rng {
-    /// A generator from a seed; the same seed gives the same frames everywhere.
-    pub const fn new(seed: u64) -> Self {
-        Rng(seed)
-    }
-
-    /// Next 64 random bits.
-    pub fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform integer in `[0, n)` (0 when `n` is 0).
-    pub fn below(&mut self, n: u32) -> u32 {
-        (((self.next_u64() >> 32) * u64::from(n)) >> 32) as u32
-    }
-
-    /// Approximately standard normal deviate in 1/65536 (sum of twelve uniforms
-    /// minus six, the Irwin–Hall construction; bounded by ±6), integer only.
-    pub fn normal_q16(&mut self) -> i32 {
-        let mut sum: i32 = 0;
-        for _ in 0..3 {
-            let r = self.next_u64();
-            for k in 0..4 {
-                sum += ((r >> (16 * k)) & 0xFFFF) as i32;
-            }
-        }
-        sum - 6 * 65536
-    }
-}
 
 /// The instrument as the forward model sees it. Plain numbers: a `const`.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -116,8 +77,9 @@ const STEPS_PER_PX: i32 = 8;
 ///
 /// ```
 /// use embedded_optics::refractometer::forward::*;
+/// use embedded_optics::rng::Rng;
 /// use embedded_optics::refractometer::geometry::GeometryDescription;
-/// use embedded_optics::medium::{IndexReference, Medium};
+/// use embedded_optics::media::{IndexReference, Medium};
 /// use embedded_optics::Error;
 /// // Test double: a prism glass of constant index (not a glass model).
 /// struct FixedGlass;
@@ -148,7 +110,7 @@ pub fn render<S: Scalar, M: Medium<S> + ?Sized>(
         return Err(Error::OutOfRange(Quantity::SensorFrame));
     }
     let p = Prepared::<S>::new(scene)?;
-    let n_s = crate::refraction::check_index(sample.index)?;
+    let n_s = crate::optics::refraction::check_index(sample.index)?;
     let t_c = sample.temperature_c;
     let disp = sample.dispersion_per_nm.check_range(
         Quantity::RefractiveIndex,

@@ -22,7 +22,7 @@
 //! coefficients fitted to standards (see [`calibration`](super::calibration)).
 
 use crate::error::{Error, Quantity};
-use crate::refraction::check_index;
+use crate::optics::refraction::check_index;
 use crate::refractometer::boundary::SUBPIXEL;
 use crate::scalar::Scalar;
 

@@ -41,11 +41,12 @@
 //!
 //! ```
 //! use embedded_optics::media::{glass::Glass, water::Water};
-//! use embedded_optics::medium::IndexReference;
+//! use embedded_optics::media::IndexReference;
 //! use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 //! use embedded_optics::refractometer::calibration::{standard_reference, water_reference};
 //! use embedded_optics::refractometer::compensation::SucroseCompensation;
-//! use embedded_optics::refractometer::forward::{render, Rng, SampleState, SensorScene};
+//! use embedded_optics::rng::Rng;
+//! use embedded_optics::refractometer::forward::{render, SampleState, SensorScene};
 //! use embedded_optics::refractometer::geometry::GeometryDescription;
 //! use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
 //! use embedded_optics::refractometer::scales::{HoneyWater, SucroseBrix};
@@ -128,15 +129,15 @@
 //! ```
 
 use crate::error::{Error, Quantity};
-use crate::focus_search::split_floor;
-use crate::medium::Medium;
-use crate::refraction::check_index;
+use crate::media::Medium;
+use crate::optics::refraction::check_index;
 use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
 use crate::refractometer::calibration::{self, Standard};
 use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
 use crate::refractometer::record::{CalibrationRecord, SlotChoice};
 use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use crate::scalar::Scalar;
+use crate::scalar::split_floor;
 
 /// Longest settling window, readings.
 pub const SETTLE_MAX: usize = 8;

@@ -35,9 +35,9 @@
 //! ```
 
 use crate::error::{Error, Quantity};
-use crate::focus_search::split_floor;
 use crate::refractometer::geometry::Correction;
 use crate::scalar::Scalar;
+use crate::scalar::split_floor;
 use fixed::types::I32F32;
 
 /// Bytes in an encoded record.
@@ -276,7 +276,7 @@ impl CalibrationRecord {
     /// assert!((n.to_num::<f64>() - 1.3330).abs() < 1e-6);
     /// ```
     pub fn correct<S: Scalar>(&self, n: S) -> Result<S, Error> {
-        let n = crate::refraction::check_index(n)?;
+        let n = crate::optics::refraction::check_index(n)?;
         self.correction::<S>()?
             .apply(n)
             .map_err(|_| Error::OutOfRange(Quantity::RefractiveIndex))

@@ -447,10 +447,10 @@ pub struct IndexScale;
 
 impl<S: Scalar> TradeScale<S> for IndexScale {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        crate::refraction::check_index(nd20)
+        crate::optics::refraction::check_index(nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        crate::refraction::check_index(value)
+        crate::optics::refraction::check_index(value)
     }
     fn unit(&self) -> &'static str {
         "nD"

@@ -23,10 +23,10 @@
 //! validation and local rules decide which correction is acceptable; these models
 //! are a physics aid, not a validated clinical method.
 
-use crate::dispersion::{LINE_C_NM, LINE_F_NM, ND_NM, check_abbe};
 use crate::error::{Error, Quantity};
 use crate::media::water;
-use crate::refraction::check_index;
+use crate::optics::dispersion::{LINE_C_NM, LINE_F_NM, ND_NM, check_abbe};
+use crate::optics::refraction::check_index;
 use crate::refractometer::WavelengthCorrection;
 use crate::scalar::Scalar;
 

@@ -227,3 +227,16 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
         }
     }
 }
+
+/// Integer part (floor) and fraction of a value.
+pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
+    let mut n = match x.round_to_i32() {
+        Ok(n) => n,
+        // Rounds past the type's range (I8F24 from 127.5 up): half lower not.
+        Err(e) => x.sub(S::HALF).map_err(|_| e)?.round_to_i32()?,
+    };
+    if S::from_i32(n)? > x {
+        n -= 1;
+    }
+    Ok((n, x.sub(S::from_i32(n)?)?))
+}

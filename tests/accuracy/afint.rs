@@ -4,7 +4,7 @@
 //! simulation's unit; I8F24 holds them), vergence in 1/mm.
 
 use crate::harness::{Budget, Case, span};
-use embedded_optics::focus;
+use embedded_optics::autofocus::focus;
 use embedded_optics::{Error, Scalar};
 
 fn grid3(a: &[f64], b: &[f64], c: &[f64]) -> Vec<Vec<f64>> {
@@ -25,7 +25,7 @@ fn lin(lo: f64, hi: f64, n: usize) -> Vec<f64> {
 
 pub struct ExtensionForVergence;
 impl Case for ExtensionForVergence {
-    const NAME: &'static str = "focus::extension_ratio_for_vergence";
+    const NAME: &'static str = "autofocus::focus::extension_ratio_for_vergence";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "f 2–8 mm, subject ∞–10 cm (0–0.01 /mm)";
     const BUDGET: Budget = Budget {
@@ -58,7 +58,7 @@ impl Case for ExtensionForVergence {
 
 pub struct BlurCircle;
 impl Case for BlurCircle {
-    const NAME: &'static str = "focus::blur_circle_diameter";
+    const NAME: &'static str = "autofocus::focus::blur_circle_diameter";
     const UNIT: &'static str = "mm";
     const DOMAIN: &'static str = "N 1.4–8, image shift ±50 µm, m 0–0.1";
     const BUDGET: Budget = Budget {
@@ -88,7 +88,7 @@ impl Case for BlurCircle {
 
 pub struct DepthOfFocusAtMagnification;
 impl Case for DepthOfFocusAtMagnification {
-    const NAME: &'static str = "focus::depth_of_focus_at_magnification";
+    const NAME: &'static str = "autofocus::focus::depth_of_focus_at_magnification";
     const UNIT: &'static str = "mm";
     const DOMAIN: &'static str = "N 1.4–8, c 1.5–5 µm, m 0–0.1";
     const BUDGET: Budget = Budget {
@@ -114,7 +114,7 @@ impl Case for DepthOfFocusAtMagnification {
 
 pub struct HyperfocalExtension;
 impl Case for HyperfocalExtension {
-    const NAME: &'static str = "focus::hyperfocal_extension";
+    const NAME: &'static str = "autofocus::focus::hyperfocal_extension";
     const UNIT: &'static str = "mm";
     const DOMAIN: &'static str = "N 1.4–8, c 1.5–5 µm";
     const BUDGET: Budget = Budget {

@@ -101,7 +101,7 @@ const BRINE_ND: [f64; 14] = [
 
 pub struct BrineFromNd;
 impl Case for BrineFromNd {
-    const NAME: &'static str = "scales::SaltBrine::value_at";
+    const NAME: &'static str = "refractometer::scales::SaltBrine::value_at";
     const UNIT: &'static str = "% NaCl";
     const DOMAIN: &'static str = "nD 1.33299–1.3795 (0–26 %)";
     const BUDGET: Budget = Budget {
@@ -128,7 +128,7 @@ impl Case for BrineFromNd {
 
 pub struct GlycolMassFromNd;
 impl Case for GlycolMassFromNd {
-    const NAME: &'static str = "scales::EthyleneGlycolMass::value_at";
+    const NAME: &'static str = "refractometer::scales::EthyleneGlycolMass::value_at";
     const UNIT: &'static str = "% by mass";
     const DOMAIN: &'static str = "nD 1.33299–1.3931 (0–60 %)";
     const BUDGET: Budget = Budget {
@@ -150,7 +150,7 @@ impl Case for GlycolMassFromNd {
 
 pub struct GlycolFreezingFromNd;
 impl Case for GlycolFreezingFromNd {
-    const NAME: &'static str = "scales::EthyleneGlycolFreezingPoint::value_at";
+    const NAME: &'static str = "refractometer::scales::EthyleneGlycolFreezingPoint::value_at";
     const UNIT: &'static str = "°C";
     const DOMAIN: &'static str = "nD 1.33299–1.3931 (0 to −51.2 °C)";
     const BUDGET: Budget = Budget {
@@ -177,7 +177,7 @@ impl Case for GlycolFreezingFromNd {
 
 pub struct BatteryAcidFromNd;
 impl Case for BatteryAcidFromNd {
-    const NAME: &'static str = "scales::BatteryAcidDensity::value_at";
+    const NAME: &'static str = "refractometer::scales::BatteryAcidDensity::value_at";
     const UNIT: &'static str = "g/cm³";
     const DOMAIN: &'static str = "nD 1.3379–1.4077 (4–60 % by mass)";
     const BUDGET: Budget = Budget {
@@ -200,7 +200,7 @@ impl Case for BatteryAcidFromNd {
 
 pub struct BrixFromNd;
 impl Case for BrixFromNd {
-    const NAME: &'static str = "scales::SucroseBrix::value_at";
+    const NAME: &'static str = "refractometer::scales::SucroseBrix::value_at";
     const UNIT: &'static str = "%Brix";
     const DOMAIN: &'static str = "nD 1.33300–1.50397 (0–85 %Brix)";
     const BUDGET: Budget = Budget {
@@ -222,7 +222,7 @@ impl Case for BrixFromNd {
 
 pub struct NdFromBrix;
 impl Case for NdFromBrix {
-    const NAME: &'static str = "scales::SucroseBrix::nd20_at";
+    const NAME: &'static str = "refractometer::scales::SucroseBrix::nd20_at";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "0–85 %Brix";
     const BUDGET: Budget = Budget {
@@ -244,7 +244,7 @@ impl Case for NdFromBrix {
 
 pub struct HoneyWaterFromNd;
 impl Case for HoneyWaterFromNd {
-    const NAME: &'static str = "scales::HoneyWater::value_at";
+    const NAME: &'static str = "refractometer::scales::HoneyWater::value_at";
     const UNIT: &'static str = "% water";
     const DOMAIN: &'static str = "nD 1.4741–1.5043 (13–25 %)";
     const BUDGET: Budget = Budget {
@@ -266,7 +266,7 @@ impl Case for HoneyWaterFromNd {
 
 pub struct SalinityFromNd;
 impl Case for SalinityFromNd {
-    const NAME: &'static str = "scales::Salinity::value_at";
+    const NAME: &'static str = "refractometer::scales::Salinity::value_at";
     const UNIT: &'static str = "‰";
     const DOMAIN: &'static str = "nD 1.333005–1.340869 (0–43 ‰)";
     const BUDGET: Budget = Budget {
@@ -313,7 +313,7 @@ const MUST: [(f64, f64); 21] = [
 
 pub struct MustAlcoholFromNd;
 impl Case for MustAlcoholFromNd {
-    const NAME: &'static str = "scales::MustPotentialAlcohol::value_at";
+    const NAME: &'static str = "refractometer::scales::MustPotentialAlcohol::value_at";
     const UNIT: &'static str = "% vol";
     const DOMAIN: &'static str = "nD 1.34783–1.38114";
     const BUDGET: Budget = Budget {
@@ -375,7 +375,8 @@ fn oiv_correction(t: f64, brix: f64) -> Option<f64> {
 
 pub struct SucroseCorrection;
 impl Case for SucroseCorrection {
-    const NAME: &'static str = "compensation::SucroseCompensation::brix_at_reference";
+    const NAME: &'static str =
+        "refractometer::compensation::SucroseCompensation::brix_at_reference";
     const UNIT: &'static str = "%Brix";
     const DOMAIN: &'static str = "5–20 °C, 10–75 %Brix (ragged as published)";
     const BUDGET: Budget = Budget {
@@ -403,7 +404,7 @@ impl Case for SucroseCorrection {
 
 pub struct LinearSampleCompensation;
 impl Case for LinearSampleCompensation {
-    const NAME: &'static str = "compensation::LinearCompensation::to_reference";
+    const NAME: &'static str = "refractometer::compensation::LinearCompensation::to_reference";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "nD 1.33–1.50, 5–40 °C, dn/dT ±5e-3";
     const BUDGET: Budget = Budget {
@@ -438,7 +439,7 @@ impl Case for LinearSampleCompensation {
 
 pub struct PrismIndex;
 impl Case for PrismIndex {
-    const NAME: &'static str = "compensation::PrismTemperature::index_at";
+    const NAME: &'static str = "refractometer::compensation::PrismTemperature::index_at";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "nD20 1.5–1.9, −20–70 °C, dn/dT −10e-6–15e-6";
     const BUDGET: Budget = Budget {
@@ -477,7 +478,7 @@ fn ln_r_sweep() -> Vec<Vec<f64>> {
 
 pub struct ThermistorSteinhartHart;
 impl Case for ThermistorSteinhartHart {
-    const NAME: &'static str = "thermistor::SteinhartHart::temperature_c";
+    const NAME: &'static str = "refractometer::thermistor::SteinhartHart::temperature_c";
     const UNIT: &'static str = "°C";
     const DOMAIN: &'static str = "ln R 6.2–11.5 (10 kΩ NTC, about −20–110 °C)";
     const BUDGET: Budget = Budget {
@@ -505,7 +506,7 @@ impl Case for ThermistorSteinhartHart {
 
 pub struct ThermistorBeta;
 impl Case for ThermistorBeta {
-    const NAME: &'static str = "thermistor::Beta::temperature_c";
+    const NAME: &'static str = "refractometer::thermistor::Beta::temperature_c";
     const UNIT: &'static str = "°C";
     const DOMAIN: &'static str = "ln R 6.2–11.5, β 3950 K, 10 kΩ at 25 °C";
     const BUDGET: Budget = Budget {
@@ -532,7 +533,7 @@ impl Case for ThermistorBeta {
 
 pub struct RecordCorrection;
 impl Case for RecordCorrection {
-    const NAME: &'static str = "record::CalibrationRecord::correct";
+    const NAME: &'static str = "refractometer::record::CalibrationRecord::correct";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "nD 1.30–1.70, c0 −0.01, c1 1.004, c2 −3.2e-4";
     const BUDGET: Budget = Budget {
@@ -573,7 +574,7 @@ fn record() -> CalibrationRecord {
 /// read back (S → I32F32 bits → S): what a restore after power loss gives.
 pub struct RecordCoefficient;
 impl Case for RecordCoefficient {
-    const NAME: &'static str = "record::CalibrationRecord::with_correction";
+    const NAME: &'static str = "refractometer::record::CalibrationRecord::with_correction";
     const UNIT: &'static str = "1 (coefficient)";
     const DOMAIN: &'static str = "c0 −2 to 2, stored and read back";
     const BUDGET: Budget = Budget {

@@ -3,12 +3,12 @@
 //! plain `f64` here, sharing no code with the crate.
 
 use crate::harness::{Budget, Case, span};
-use embedded_optics::chromatic::{self, Achromat};
-use embedded_optics::dispersion::{self, Cauchy, Dispersion, Sellmeier};
+use embedded_optics::media::IndexReference;
 use embedded_optics::media::{air, glass::Glass, seawater, water};
-use embedded_optics::medium::IndexReference;
+use embedded_optics::optics::chromatic::{self, Achromat};
+use embedded_optics::optics::dispersion::{self, Cauchy, Dispersion, Sellmeier};
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
-use embedded_optics::{Error, Scalar, prism};
+use embedded_optics::{Error, Scalar, optics::prism};
 
 /// Every combination of the axes' values, first axis outermost.
 fn grid(axes: &[Vec<f64>]) -> Vec<Vec<f64>> {
@@ -71,7 +71,7 @@ fn water_air_ref(t: f64, l: f64) -> f64 {
 
 pub struct SellmeierSilica;
 impl Case for SellmeierSilica {
-    const NAME: &'static str = "dispersion::Sellmeier::index_um (fused silica)";
+    const NAME: &'static str = "optics::dispersion::Sellmeier::index_um (fused silica)";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "λ 0.25–3.5 µm";
     const BUDGET: Budget = Budget {
@@ -93,7 +93,7 @@ impl Case for SellmeierSilica {
 
 pub struct CauchyNdVd;
 impl Case for CauchyNdVd {
-    const NAME: &'static str = "dispersion::Cauchy::from_nd_vd + index_um";
+    const NAME: &'static str = "optics::dispersion::Cauchy::from_nd_vd + index_um";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "nd 1.45–1.95, Vd 20–90, λ 0.40–0.80 µm";
     const BUDGET: Budget = Budget {
@@ -120,7 +120,7 @@ impl Case for CauchyNdVd {
 
 pub struct AbbeVd;
 impl Case for AbbeVd {
-    const NAME: &'static str = "dispersion::abbe_vd";
+    const NAME: &'static str = "optics::dispersion::abbe_vd";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "nd 1.45–1.95, nF − nC 0.008–0.04";
     const BUDGET: Budget = Budget {
@@ -387,7 +387,7 @@ impl Case for NdAbbe {
 
 pub struct PrismDeviation;
 impl Case for PrismDeviation {
-    const NAME: &'static str = "prism::deviation";
+    const NAME: &'static str = "optics::prism::deviation";
     const UNIT: &'static str = "rad";
     const DOMAIN: &'static str = "n 1.4–1.9, A 30°–60°, i 20°–80°, 0.5° clear of TIR";
     const BUDGET: Budget = Budget {
@@ -423,7 +423,7 @@ impl Case for PrismDeviation {
 
 pub struct PrismIndex;
 impl Case for PrismIndex {
-    const NAME: &'static str = "prism::index_from_minimum_deviation";
+    const NAME: &'static str = "optics::prism::index_from_minimum_deviation";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "A 30°–70°, D 10°–60°";
     const BUDGET: Budget = Budget {
@@ -452,7 +452,7 @@ impl Case for PrismIndex {
 
 pub struct PrismMinDeviation;
 impl Case for PrismMinDeviation {
-    const NAME: &'static str = "prism::minimum_deviation";
+    const NAME: &'static str = "optics::prism::minimum_deviation";
     const UNIT: &'static str = "rad";
     const DOMAIN: &'static str = "n 1.3–1.9, A 20°–60°";
     const BUDGET: Budget = Budget {
@@ -480,7 +480,7 @@ impl Case for PrismMinDeviation {
 
 pub struct SingletFocalLength;
 impl Case for SingletFocalLength {
-    const NAME: &'static str = "chromatic::focal_length (silica, f = 50 at d)";
+    const NAME: &'static str = "optics::chromatic::focal_length (silica, f = 50 at d)";
     const UNIT: &'static str = "length (as f)";
     const DOMAIN: &'static str = "λ 0.4–1.0 µm";
     const BUDGET: Budget = Budget {
@@ -504,7 +504,7 @@ impl Case for SingletFocalLength {
 
 pub struct AchromatSecondary;
 impl Case for AchromatSecondary {
-    const NAME: &'static str = "chromatic::Achromat::secondary_spectrum (f = 50)";
+    const NAME: &'static str = "optics::chromatic::Achromat::secondary_spectrum (f = 50)";
     const UNIT: &'static str = "length (as f)";
     const DOMAIN: &'static str = "nd/Vd Cauchy glasses 1.5168/64.17 + 1.62/36.37, λ 0.40–0.80 µm";
     const BUDGET: Budget = Budget {
@@ -538,7 +538,7 @@ impl Case for AchromatSecondary {
 
 pub struct AngularDispersionSilica;
 impl Case for AngularDispersionSilica {
-    const NAME: &'static str = "prism::angular_dispersion_of (silica, A = 60°)";
+    const NAME: &'static str = "optics::prism::angular_dispersion_of (silica, A = 60°)";
     const UNIT: &'static str = "rad/µm";
     const DOMAIN: &'static str = "λ 0.4–1.0 µm";
     const BUDGET: Budget = Budget {
@@ -574,7 +574,7 @@ impl Case for AngularDispersionSilica {
 
 pub struct PartialDispersion;
 impl Case for PartialDispersion {
-    const NAME: &'static str = "dispersion::partial_dispersion_gf";
+    const NAME: &'static str = "optics::dispersion::partial_dispersion_gf";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "nF 1.45–1.95, nF − nC 0.008–0.04, ng − nF 0.4–0.7 of it";
     const BUDGET: Budget = Budget {

@@ -4,10 +4,10 @@
 //! dioptres, except the two-lens system (millimetres and 1/mm).
 
 use crate::harness::{Budget, Case, span};
-use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-use embedded_optics::af_assist::{self, RangeSensorMount};
-use embedded_optics::focus::{self, SubjectDistance};
-use embedded_optics::{Error, Scalar, lens};
+use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+use embedded_optics::autofocus::assist::{self, RangeSensorMount};
+use embedded_optics::autofocus::focus::{self, SubjectDistance};
+use embedded_optics::{Error, Scalar, optics::lens};
 
 /// Every combination of the given axes.
 fn grid(axes: &[Vec<f64>]) -> Vec<Vec<f64>> {
@@ -35,7 +35,7 @@ fn lens_and_subject() -> Vec<Vec<f64>> {
 
 pub struct ImageDistance;
 impl Case for ImageDistance {
-    const NAME: &'static str = "lens::image_distance";
+    const NAME: &'static str = "optics::lens::image_distance";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 2–8 mm, u 5 cm–10 m";
     const BUDGET: Budget = Budget {
@@ -57,7 +57,7 @@ impl Case for ImageDistance {
 
 pub struct LensExtension;
 impl Case for LensExtension {
-    const NAME: &'static str = "focus::lens_extension";
+    const NAME: &'static str = "autofocus::focus::lens_extension";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 2–8 mm, u 5 cm–10 m";
     const BUDGET: Budget = Budget {
@@ -79,7 +79,7 @@ impl Case for LensExtension {
 
 pub struct SubjectFromExtension;
 impl Case for SubjectFromExtension {
-    const NAME: &'static str = "focus::subject_distance_from_extension";
+    const NAME: &'static str = "autofocus::focus::subject_distance_from_extension";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 4 mm, extension 16–400 µm (1 m–4 cm)";
     const BUDGET: Budget = Budget {
@@ -113,7 +113,7 @@ fn hyperfocal(x: &[f64]) -> f64 {
 
 pub struct Hyperfocal;
 impl Case for Hyperfocal {
-    const NAME: &'static str = "focus::hyperfocal_distance";
+    const NAME: &'static str = "autofocus::focus::hyperfocal_distance";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 2–8 mm, f/1.4–f/4, c 1.5–6 µm";
     const BUDGET: Budget = Budget {
@@ -145,7 +145,7 @@ fn dof_inputs() -> Vec<Vec<f64>> {
 
 pub struct DofNear;
 impl Case for DofNear {
-    const NAME: &'static str = "focus::depth_of_field (near)";
+    const NAME: &'static str = "autofocus::focus::depth_of_field (near)";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 4 mm, f/1.8–f/2.8, c 2–3 µm, s 10 cm–1.5 m";
     const BUDGET: Budget = Budget {
@@ -168,7 +168,7 @@ impl Case for DofNear {
 
 pub struct DofFar;
 impl Case for DofFar {
-    const NAME: &'static str = "focus::depth_of_field (far)";
+    const NAME: &'static str = "autofocus::focus::depth_of_field (far)";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 4 mm, f/1.8–f/2.8, c 2–3 µm, s 10 cm–1.5 m";
     const BUDGET: Budget = Budget {
@@ -194,7 +194,7 @@ impl Case for DofFar {
 
 pub struct DepthOfFocus;
 impl Case for DepthOfFocus {
-    const NAME: &'static str = "focus::depth_of_focus";
+    const NAME: &'static str = "autofocus::focus::depth_of_focus";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f 4 mm, f/1.8–f/2.8, c 2–3 µm, s 10 cm–1.5 m";
     const BUDGET: Budget = Budget {
@@ -216,7 +216,7 @@ impl Case for DepthOfFocus {
 
 pub struct Lensmaker;
 impl Case for Lensmaker {
-    const NAME: &'static str = "lens::lensmaker_power";
+    const NAME: &'static str = "optics::lens::lensmaker_power";
     const UNIT: &'static str = "1/mm";
     const DOMAIN: &'static str = "n 1.45–1.9 in air, c1 0–0.5/mm, c2 −0.5–0/mm";
     const BUDGET: Budget = Budget {
@@ -243,7 +243,7 @@ impl Case for Lensmaker {
 
 pub struct TwoLensEfl;
 impl Case for TwoLensEfl {
-    const NAME: &'static str = "lens::two_lens_system (EFL)";
+    const NAME: &'static str = "optics::lens::two_lens_system (EFL)";
     const UNIT: &'static str = "mm";
     const DOMAIN: &'static str = "P1 0.1–0.5/mm, P2 −0.2–0.5/mm, gap 0–2 mm";
     const BUDGET: Budget = Budget {
@@ -271,7 +271,7 @@ impl Case for TwoLensEfl {
 
 pub struct LiquidLensFocal;
 impl Case for LiquidLensFocal {
-    const NAME: &'static str = "lens::liquid_lens_focus";
+    const NAME: &'static str = "optics::lens::liquid_lens_focus";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "f0 3–6 mm, liquid −10–+20 D, gap 0–2 mm";
     const BUDGET: Budget = Budget {
@@ -297,7 +297,7 @@ impl Case for LiquidLensFocal {
 
 pub struct VertexPower;
 impl Case for VertexPower {
-    const NAME: &'static str = "lens::power_at_vertex";
+    const NAME: &'static str = "optics::lens::power_at_vertex";
     const UNIT: &'static str = "D";
     const DOMAIN: &'static str = "F −20–+15 D, 12 mm → 0–20 mm";
     const BUDGET: Budget = Budget {
@@ -319,7 +319,7 @@ impl Case for VertexPower {
 
 pub struct FarPoint;
 impl Case for FarPoint {
-    const NAME: &'static str = "lens::far_point_correction";
+    const NAME: &'static str = "optics::lens::far_point_correction";
     const UNIT: &'static str = "D";
     const DOMAIN: &'static str = "far point ±(0.1–5) m, vertex 0–15 mm";
     const BUDGET: Budget = Budget {
@@ -345,7 +345,7 @@ impl Case for FarPoint {
 
 pub struct RatioForCode;
 impl Case for RatioForCode {
-    const NAME: &'static str = "actuator::ActuatorModel::extension_ratio_for_code";
+    const NAME: &'static str = "autofocus::actuator::ActuatorModel::extension_ratio_for_code";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "f 4 mm, ∞ at 300, 10 cm at 700, codes 300–700";
     const BUDGET: Budget = Budget {
@@ -388,7 +388,7 @@ impl Case for RatioForCode {
 
 pub struct RangeParallax;
 impl Case for RangeParallax {
-    const NAME: &'static str = "af_assist::subject_distance_from_range";
+    const NAME: &'static str = "autofocus::assist::subject_distance_from_range";
     const UNIT: &'static str = "m";
     const DOMAIN: &'static str = "range 5 cm–8 m, baseline 0–25 mm, offset ±3 mm";
     const BUDGET: Budget = Budget {
@@ -412,6 +412,6 @@ impl Case for RangeParallax {
             baseline: x[1],
             axial_offset: x[2],
         };
-        af_assist::subject_distance_from_range(&mount, x[0])
+        assist::subject_distance_from_range(&mount, x[0])
     }
 }

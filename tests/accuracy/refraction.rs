@@ -1,7 +1,7 @@
 //! Sweeps of the refraction and Fresnel routines.
 
 use crate::harness::{Budget, Case, span};
-use embedded_optics::{Error, Scalar, fresnel, refraction};
+use embedded_optics::{Error, Scalar, optics::fresnel, optics::refraction};
 
 /// Prism/sample index pairs a refractometer meets: dense flint and sapphire
 /// prisms against water to oils.
@@ -17,7 +17,7 @@ fn index_pairs(n: usize) -> Vec<(f64, f64)> {
 
 pub struct CriticalSine;
 impl Case for CriticalSine {
-    const NAME: &'static str = "refraction::critical_sine";
+    const NAME: &'static str = "optics::refraction::critical_sine";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "n_prism 1.50–1.90, n_sample 1.30–1.49";
     const BUDGET: Budget = Budget {
@@ -42,7 +42,7 @@ impl Case for CriticalSine {
 
 pub struct CriticalAngle;
 impl Case for CriticalAngle {
-    const NAME: &'static str = "refraction::critical_angle";
+    const NAME: &'static str = "optics::refraction::critical_angle";
     const UNIT: &'static str = "rad";
     const DOMAIN: &'static str = "n_prism 1.50–1.90, n_sample 1.30–1.49";
     const BUDGET: Budget = Budget {
@@ -64,7 +64,7 @@ impl Case for CriticalAngle {
 
 pub struct IndexFromCriticalAngle;
 impl Case for IndexFromCriticalAngle {
-    const NAME: &'static str = "refraction::sample_index_from_critical_angle";
+    const NAME: &'static str = "optics::refraction::sample_index_from_critical_angle";
     const UNIT: &'static str = "1 (index)";
     const DOMAIN: &'static str = "n_prism 1.50–1.90, θc 45°–80°";
     const BUDGET: Budget = Budget {
@@ -92,7 +92,7 @@ impl Case for IndexFromCriticalAngle {
 
 pub struct RefractionAngle;
 impl Case for RefractionAngle {
-    const NAME: &'static str = "refraction::refraction_angle";
+    const NAME: &'static str = "optics::refraction::refraction_angle";
     const UNIT: &'static str = "rad";
     const DOMAIN: &'static str = "n1, n2 1.0–1.9, θ 0°–89°, no TIR within 0.5° of θc";
     const BUDGET: Budget = Budget {
@@ -145,7 +145,7 @@ fn fresnel_reference(n1: f64, n2: f64, ti: f64) -> f64 {
 
 pub struct FresnelUnpolarised;
 impl Case for FresnelUnpolarised {
-    const NAME: &'static str = "fresnel::reflectance (unpolarised)";
+    const NAME: &'static str = "optics::fresnel::reflectance (unpolarised)";
     const UNIT: &'static str = "1";
     const DOMAIN: &'static str = "n1 1.3–1.9, n2 1.0–1.9, θ 0°–85°, 0.5° clear of θc";
     const BUDGET: Budget = Budget {

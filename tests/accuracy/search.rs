@@ -2,8 +2,8 @@
 //! interpolation and the simulation's blur circle and metric model.
 
 use crate::harness::{Budget, Case, span};
-use embedded_optics::focus_search::{PeakFit, interpolate_peak};
-use embedded_optics::focus_sim::{LensModel, Scene};
+use embedded_optics::autofocus::search::{PeakFit, interpolate_peak};
+use embedded_optics::autofocus::sim::{LensModel, Scene};
 use embedded_optics::{Error, Scalar};
 
 /// Vertex offsets −0.5…0.5 against curve widths 0.6…3 sample spacings.
@@ -30,7 +30,7 @@ fn gaussian(x0: f64, w: f64) -> [u64; 3] {
 
 pub struct PeakParabolic;
 impl Case for PeakParabolic {
-    const NAME: &'static str = "focus_search::interpolate_peak (parabolic)";
+    const NAME: &'static str = "autofocus::search::interpolate_peak (parabolic)";
     const UNIT: &'static str = "sample spacings";
     const DOMAIN: &'static str = "parabola, vertex −0.5…0.5, half-width 0.6–3 spacings";
     // The drops from the peak are scaled to 29 bits before the division, so even
@@ -56,7 +56,7 @@ impl Case for PeakParabolic {
 
 pub struct PeakGaussian;
 impl Case for PeakGaussian {
-    const NAME: &'static str = "focus_search::interpolate_peak (Gaussian)";
+    const NAME: &'static str = "autofocus::search::interpolate_peak (Gaussian)";
     const UNIT: &'static str = "sample spacings";
     const DOMAIN: &'static str = "Gaussian, centre −0.5…0.5, σ 0.6–3 spacings";
     const BUDGET: Budget = Budget {
@@ -115,7 +115,7 @@ fn scene_and_code<S: Scalar>(x: &[S]) -> (Scene<S>, i32) {
 
 pub struct SimBlur;
 impl Case for SimBlur {
-    const NAME: &'static str = "focus_sim::LensModel::blur_px";
+    const NAME: &'static str = "autofocus::sim::LensModel::blur_px";
     const UNIT: &'static str = "pixels";
     const DOMAIN: &'static str =
         "phone module (constants rounded to the type), subject 10 cm–∞, codes 0–1023";
@@ -141,7 +141,7 @@ impl Case for SimBlur {
 
 pub struct SimMetric;
 impl Case for SimMetric {
-    const NAME: &'static str = "focus_sim::LensModel::metric_model";
+    const NAME: &'static str = "autofocus::sim::LensModel::metric_model";
     const UNIT: &'static str = "1 (sharp, full contrast = 1)";
     const DOMAIN: &'static str =
         "phone module (constants rounded to the type), subject 10 cm–∞, codes 0–1023, contrast 1";

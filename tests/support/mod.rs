@@ -8,13 +8,14 @@
 //! the chain's optics and arithmetic, not the models.
 #![allow(dead_code)]
 
-use embedded_optics::medium::{IndexReference, Medium};
+use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
-use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
+use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
 pub use embedded_optics::refractometer::scales::IndexScale;
 use embedded_optics::refractometer::{SampleCompensation, WavelengthCorrection};
+use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 
 pub const ND_LINE: f64 = 589.3;

@@ -123,7 +123,7 @@ fn frame(out: &mut String) {
     writeln!(out, "pub static FRAME: [u16; {PIXELS}] = [").unwrap();
     for p in 0..PIXELS {
         let incidence = critical + span * (p as f64 / PIXELS as f64 - 0.5);
-        let r = embedded_optics::fresnel::reflectance(n_prism, n_sample, incidence)
+        let r = embedded_optics::optics::fresnel::reflectance(n_prism, n_sample, incidence)
             .expect("valid incidence")
             .unpolarised;
         noise ^= noise << 13;
@@ -194,9 +194,10 @@ fn solve(f: impl Fn(f64) -> f64, y: f64, mut lo: f64, mut hi: f64) -> f64 {
 /// inverting the chain's own models), read noise 10 counts, seeded.
 fn chain_frames() -> Vec<Vec<u16>> {
     use embedded_optics::media::water::Water;
-    use embedded_optics::medium::{IndexReference, Medium};
+    use embedded_optics::media::{IndexReference, Medium};
     use embedded_optics::refractometer::compensation::SucroseCompensation;
-    use embedded_optics::refractometer::forward::{Rng, SampleState, SensorScene, render};
+    use embedded_optics::rng::Rng;
+    use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
     use embedded_optics::refractometer::scales::SucroseBrix;
     use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
     use embedded_optics::refractometer::{TradeScale, WavelengthCorrection};

@@ -7,7 +7,7 @@
 //   temperature compensation (OIV Table I) → %Brix (ICUMSA). Zeroed on a
 //   distilled-water frame against the compile-time water table.
 // - Autofocus: the contrast search driving an I²C focus actuator; the bus is
-//   simulated and moves the simulated lens (focus_sim) the search looks through.
+//   simulated and moves the simulated lens (autofocus::sim) the search looks through.
 //
 // Invented design (our fictional juice plant's handheld): 1024 × 14 µm line
 // sensor behind 30 mm optics, prism of nd 1.7174 / Vd 29.5, 590 nm LED.
@@ -16,12 +16,12 @@ use core::cell::Cell;
 use core::convert::Infallible;
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::{ErrorType, I2c, Operation, SevenBitAddress};
-use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
-use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
-use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
+use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+use embedded_optics::autofocus::search::{FocusSearch, SearchConfig, Step};
+use embedded_optics::autofocus::sim::{LensModel, Scene, SimCamera};
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::{PrecomputedWater, WaterTable};
-use embedded_optics::medium::{IndexReference, Medium};
+use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::geometry::GeometryDescription;
@@ -136,7 +136,8 @@ pub fn refractometer_run<S: Scalar, P: Copy + Into<i32>>(
     out
 }
 
-/// The camera rig's actuator: 10-bit code in the top of a 16-bit word at 0x0C.
+/// The camera rig's actuator at 0x0C: a 10-bit code in bits 13..4 of a 16-bit
+/// big-endian word (code << 4), a layout common among 10-bit VCM drivers.
 pub const LAYOUT: BusLayout = BusLayout {
     address: 0x0C,
     code_bits: 10,

@@ -19,16 +19,16 @@ use crate::{Tabled, chain_frames, chain_temperatures, row};
 use core::convert::Infallible;
 use core::hint::black_box;
 use embedded_hal::i2c::{ErrorType, I2c, Operation};
-use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-use embedded_optics::actuator_driver::FocusActuatorDriver;
-use embedded_optics::focus::SubjectDistance;
-use embedded_optics::focus_metric::{Roi, tenengrad};
-use embedded_optics::focus_search::{FocusSearch, Step};
-use embedded_optics::focus_sim::LensModel;
-use embedded_optics::fresnel::{reflectance, reflectance_from_cosine};
+use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+use embedded_optics::autofocus::driver::FocusActuatorDriver;
+use embedded_optics::autofocus::focus::SubjectDistance;
+use embedded_optics::autofocus::metric::{Roi, tenengrad};
+use embedded_optics::autofocus::search::{FocusSearch, Step};
+use embedded_optics::autofocus::sim::LensModel;
+use embedded_optics::optics::fresnel::{reflectance, reflectance_from_cosine};
 use embedded_optics::lit;
-use embedded_optics::medium::Medium;
-use embedded_optics::refraction::{
+use embedded_optics::media::Medium;
+use embedded_optics::optics::refraction::{
     critical_angle, sample_index_from_critical_angle, sample_index_from_critical_sine,
 };
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection, find_boundary};

@@ -2,11 +2,11 @@
 // build.rs (host, expected values) and the images (target) with `#[path]`, so the
 // host and the firmware run literally the same code.
 
-use embedded_optics::refraction::{
+use embedded_optics::optics::refraction::{
     critical_angle, critical_sine, sample_index_from_critical_angle,
     sample_index_from_critical_sine,
 };
-use embedded_optics::{Error, Scalar, fresnel};
+use embedded_optics::{Error, Scalar, optics::fresnel};
 
 /// Outputs per row: see [`outputs`].
 pub const OUTPUTS: usize = 10;

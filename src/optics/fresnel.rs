@@ -5,7 +5,7 @@
 //! line sensor sees.
 
 use crate::error::{Error, Quantity};
-use crate::refraction::{check_incidence, check_index};
+use crate::optics::refraction::{check_incidence, check_index};
 use crate::scalar::Scalar;
 
 /// Power reflectance for the two polarisations and for unpolarised light.
@@ -25,7 +25,7 @@ pub struct Reflectance<S> {
 /// 1 (total internal reflection).
 ///
 /// ```
-/// use embedded_optics::fresnel::reflectance;
+/// use embedded_optics::optics::fresnel::reflectance;
 /// // Air to glass at normal incidence: ((1.5 - 1) / (1.5 + 1))^2 = 0.04.
 /// let r = reflectance(1.0f64, 1.5, 0.0).unwrap();
 /// assert!((r.unpolarised - 0.04).abs() < 1e-12);

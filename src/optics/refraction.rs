@@ -39,7 +39,7 @@ pub fn check_sine<S: Scalar>(sine: S) -> Result<S, Error> {
 /// [`Error::TotalInternalReflection`] when `n1 sin θ1 > n2`.
 ///
 /// ```
-/// use embedded_optics::refraction::refracted_sine;
+/// use embedded_optics::optics::refraction::refracted_sine;
 /// // Air to water (n = 1.333) at sin θ = 0.5.
 /// let s: f64 = refracted_sine(1.0, 1.333, 0.5).unwrap();
 /// assert!((s - 0.5 / 1.333).abs() < 1e-12);
@@ -90,7 +90,7 @@ pub fn critical_sine<S: Scalar>(n_prism: S, n_sample: S) -> Result<S, Error> {
 /// Critical angle θc = asin(n_sample / n_prism).
 ///
 /// ```
-/// use embedded_optics::refraction::critical_angle;
+/// use embedded_optics::optics::refraction::critical_angle;
 /// // Crown glass (1.52) against water (1.333): about 61.3 degrees.
 /// let theta: f64 = critical_angle(1.52, 1.333).unwrap();
 /// assert!((theta.to_degrees() - 61.28).abs() < 0.01);
@@ -121,7 +121,7 @@ pub fn sample_index_from_critical_sine<S: Scalar>(n_prism: S, sin_critical: S) -
 /// Sample index from the measured critical angle, `n_prism · sin θc`.
 ///
 /// ```
-/// use embedded_optics::refraction::sample_index_from_critical_angle;
+/// use embedded_optics::optics::refraction::sample_index_from_critical_angle;
 /// use fixed::types::I8F24;
 /// let n_prism = I8F24::from_num(1.72);
 /// let theta = I8F24::from_num(0.8726646); // 50 degrees

@@ -1,7 +1,7 @@
 //! Contrast-detect autofocus search: a frame-by-frame state machine.
 //!
 //! The camera pipeline gives one focus metric per frame (see
-//! [`focus_metric`](crate::focus_metric)); [`FocusSearch::feed`] takes it and
+//! [`autofocus::metric`](crate::autofocus::metric)); [`FocusSearch::feed`] takes it and
 //! answers the next actuator code to command, or that the search is done, or
 //! that it failed and where to park the lens. Nothing blocks and nothing
 //! allocates: the search keeps its samples in a fixed-capacity array.
@@ -35,7 +35,7 @@
 //!
 //! **Hybrid (phase-detect or range hint)**: [`FocusSearch::start_with_hint`]
 //! takes the [`FocusTarget`] (code and confidence) that
-//! [`af_assist`](crate::af_assist) produces from a phase-detect disparity or a
+//! [`autofocus::assist`](crate::autofocus::assist) produces from a phase-detect disparity or a
 //! range reading. At or above
 //! `hint_min_confidence` the search scans only `hint_half_window` fine steps on
 //! each side of the target; if the peak is not bracketed there, the window is
@@ -53,7 +53,7 @@
 //! focus (or beyond infinity, for a lens whose low end sits past infinity).
 //!
 //! ```
-//! use embedded_optics::focus_search::{FocusSearch, SearchConfig, Step};
+//! use embedded_optics::autofocus::search::{FocusSearch, SearchConfig, Step};
 //! // A made-up metric curve peaking at code 400.
 //! let metric = |code: i32| 1_000_000 / (1 + u64::from((code - 400).unsigned_abs()).pow(2) / 64);
 //! let mut search = FocusSearch::new(SearchConfig::<f32>::typical(0, 1023, 160)).unwrap();
@@ -68,16 +68,16 @@
 //! ```
 //!
 //! What follows is `docs/autofocus.md`: the closed-loop figures measured on
-//! the simulated module ([`focus_sim`](crate::focus_sim)), with the hints from
-//! [`af_assist`](crate::af_assist) and the moves through
-//! [`actuator_driver`](crate::actuator_driver).
+//! the simulated module ([`autofocus::sim`](crate::autofocus::sim)), with the hints from
+//! [`autofocus::assist`](crate::autofocus::assist) and the moves through
+//! [`autofocus::driver`](crate::autofocus::driver).
 //!
-#![doc = include_str!("../docs/autofocus.md")]
+#![doc = include_str!("../../docs/autofocus.md")]
 
-use crate::actuator::{ActuatorModel, OperatingConditions};
-use crate::af_assist::FocusTarget;
+use crate::autofocus::actuator::{ActuatorModel, OperatingConditions};
+use crate::autofocus::assist::FocusTarget;
+use crate::autofocus::focus::FocusSweepPlan;
 use crate::error::{Error, Quantity};
-use crate::focus::FocusSweepPlan;
 use crate::lit;
 use crate::scalar::Scalar;
 use heapless::Vec;
@@ -107,7 +107,7 @@ pub enum PeakFit {
 /// `u64` metric works in every number type, `I8F24` included.
 ///
 /// ```
-/// use embedded_optics::focus_search::{interpolate_peak, PeakFit};
+/// use embedded_optics::autofocus::search::{interpolate_peak, PeakFit};
 /// // y = 16·100 − (4x − 1)² at x = −1, 0, 1: vertex at x = 1/4.
 /// let d: f64 = interpolate_peak(1575, 1599, 1591, PeakFit::Parabolic).unwrap();
 /// assert!((d - 0.25).abs() < 1e-12);
@@ -167,20 +167,7 @@ pub fn interpolate_peak<S: Scalar>(
 /// any [`Scalar`] (an `I8F24` holds no more than 128) into an integer.
 pub(crate) fn unit_to_q16<S: Scalar>(x: S, quantity: Quantity) -> Result<u32, Error> {
     let x = x.check_range(quantity, S::ZERO, lit!(S, 1.99))?;
-    u32::try_from(crate::actuator::to_code_units(x)?).map_err(|_| Error::Overflow)
-}
-
-/// Integer part (floor) and fraction of a value.
-pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
-    let mut n = match x.round_to_i32() {
-        Ok(n) => n,
-        // Rounds past the type's range (I8F24 from 127.5 up): half lower not.
-        Err(e) => x.sub(S::HALF).map_err(|_| e)?.round_to_i32()?,
-    };
-    if S::from_i32(n)? > x {
-        n -= 1;
-    }
-    Ok((n, x.sub(S::from_i32(n)?)?))
+    u32::try_from(crate::autofocus::actuator::to_code_units(x)?).map_err(|_| Error::Overflow)
 }
 
 /// `a < ratio · b` with `ratio` in 2^-16 units, exact.
@@ -265,7 +252,7 @@ impl<S: Scalar> SearchConfig<S> {
     /// few per cent off, plus the metric's fall on both sides), backlash margin
     /// four fine steps (raise it if the actuator's play is larger), a frame budget that covers a hint window that fails, then a full
     /// coarse scan, the fine scan and the final approach, and the park code at `hyperfocal_extension` (from
-    /// [`hyperfocal_extension`](crate::focus::hyperfocal_extension), clamped to
+    /// [`hyperfocal_extension`](crate::autofocus::focus::hyperfocal_extension), clamped to
     /// the travel). The plan, the model and the extension share one length unit.
     ///
     /// Errors: a plan end off the actuator's travel is [`Error::OutOfRange`] of
@@ -273,9 +260,9 @@ impl<S: Scalar> SearchConfig<S> {
     /// to the same code, is [`Error::OutOfRange`] of [`Quantity::SearchSetting`].
     ///
     /// ```
-    /// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint};
-    /// use embedded_optics::focus::{hyperfocal_extension, plan_focus_sweep, SubjectDistance};
-    /// use embedded_optics::focus_search::SearchConfig;
+    /// use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint};
+    /// use embedded_optics::autofocus::focus::{hyperfocal_extension, plan_focus_sweep, SubjectDistance};
+    /// use embedded_optics::autofocus::search::SearchConfig;
     /// // Our camera rig's module, in millimetres: 4 mm f/2, c = 2.24 µm,
     /// // infinity at code 300, 10 cm at code 700.
     /// let model = ActuatorModel::from_table(4.0f64, &[
@@ -556,8 +543,8 @@ impl<S: Scalar> FocusSearch<S> {
     }
 
     /// Starts a hybrid search from a focus target (the output of
-    /// [`phase_detect_target`](crate::af_assist::phase_detect_target) or
-    /// [`range_sensor_target`](crate::af_assist::range_sensor_target)); returns
+    /// [`phase_detect_target`](crate::autofocus::assist::phase_detect_target) or
+    /// [`range_sensor_target`](crate::autofocus::assist::range_sensor_target)); returns
     /// the first move.
     ///
     /// Errors (and the search stays as it was) for a confidence that is NaN,

@@ -18,10 +18,10 @@
 //! Laser range sensors are eye-safety devices: keep them within their class limits
 //! and follow the applicable laser-safety standard and local regulations.
 
-use crate::actuator::{ActuatorModel, OperatingConditions};
+use crate::autofocus::actuator::{ActuatorModel, OperatingConditions};
+use crate::autofocus::focus::SubjectDistance;
 use crate::error::{Error, Quantity};
-use crate::focus::SubjectDistance;
-use crate::lens::{finite, positive};
+use crate::optics::lens::{finite, positive};
 use crate::scalar::Scalar;
 
 /// An actuator code to move to, and how far to trust it (0 to 1).
@@ -65,7 +65,7 @@ pub struct PhaseDetectCalibration<S> {
 /// [`Quantity::Disparity`].
 ///
 /// ```
-/// use embedded_optics::af_assist::{defocus_from_disparity, PhaseDetectCalibration};
+/// use embedded_optics::autofocus::assist::{defocus_from_disparity, PhaseDetectCalibration};
 /// let cal = PhaseDetectCalibration { defocus_per_pixel: 8.0e-6f64, max_disparity: 16.0, min_confidence: 0.5 };
 /// assert!((defocus_from_disparity(&cal, 2.5).unwrap() - 2.0e-5).abs() < 1e-18);
 /// ```
@@ -88,9 +88,9 @@ pub fn defocus_from_disparity<S: Scalar>(
 /// subject is nearer than the lens can reach, or the estimate is wrong).
 ///
 /// ```
-/// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-/// use embedded_optics::af_assist::{phase_detect_target, PhaseDetectCalibration};
-/// use embedded_optics::focus::SubjectDistance;
+/// use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+/// use embedded_optics::autofocus::assist::{phase_detect_target, PhaseDetectCalibration};
+/// use embedded_optics::autofocus::focus::SubjectDistance;
 /// let model = ActuatorModel::from_table(0.004f32, &[
 ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
 ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },
@@ -136,7 +136,7 @@ pub struct RangeSensorMount<S> {
 /// [`Error::OutOfRange`] of [`Quantity::Length`].
 ///
 /// ```
-/// use embedded_optics::af_assist::{subject_distance_from_range, RangeSensorMount};
+/// use embedded_optics::autofocus::assist::{subject_distance_from_range, RangeSensorMount};
 /// let mount = RangeSensorMount { baseline: 0.012f64, axial_offset: 0.0 };
 /// let z = subject_distance_from_range(&mount, 0.1).unwrap();
 /// assert!((z - (0.01f64 - 0.000144).sqrt()).abs() < 1e-12);
@@ -163,9 +163,9 @@ pub fn subject_distance_from_range<S: Scalar>(
 /// is nearer than the lens can focus.
 ///
 /// ```
-/// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-/// use embedded_optics::af_assist::{range_sensor_target, RangeSensorMount};
-/// use embedded_optics::focus::SubjectDistance;
+/// use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+/// use embedded_optics::autofocus::assist::{range_sensor_target, RangeSensorMount};
+/// use embedded_optics::autofocus::focus::SubjectDistance;
 /// let model = ActuatorModel::from_table(0.004f32, &[
 ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
 ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },

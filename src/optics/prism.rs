@@ -6,9 +6,9 @@
 //! prism's index relative to the surrounding medium. Rays that cannot leave the
 //! prism return [`Error::TotalInternalReflection`].
 
-use crate::dispersion::Dispersion;
 use crate::error::{Error, Quantity};
-use crate::refraction::{check_incidence, check_index};
+use crate::optics::dispersion::Dispersion;
+use crate::optics::refraction::{check_incidence, check_index};
 use crate::scalar::Scalar;
 
 /// Checks an apex angle: finite, positive, below π.
@@ -24,7 +24,7 @@ pub fn check_apex<S: Scalar>(apex: S) -> Result<S, Error> {
 /// `incidence` (from the first face's normal, towards the base positive).
 ///
 /// ```
-/// use embedded_optics::prism::deviation;
+/// use embedded_optics::optics::prism::deviation;
 /// let d: f64 = deviation(1.5, 60f64.to_radians(), 50f64.to_radians()).unwrap();
 /// assert!((d.to_degrees() - 37.209).abs() < 1e-3);
 /// ```
@@ -62,7 +62,7 @@ fn half_apex_sine<S: Scalar>(n: S, apex: S) -> Result<(S, S), Error> {
 /// Minimum deviation `D = 2 asin(n sin(A/2)) − A`.
 ///
 /// ```
-/// use embedded_optics::prism::minimum_deviation;
+/// use embedded_optics::optics::prism::minimum_deviation;
 /// let d: f64 = minimum_deviation(1.5168, 60f64.to_radians()).unwrap();
 /// assert!((d.to_degrees() - 38.647).abs() < 1e-3);
 /// ```
@@ -75,7 +75,7 @@ pub fn minimum_deviation<S: Scalar>(n: S, apex: S) -> Result<S, Error> {
 /// `n = sin((A + D)/2) / sin(A/2)`.
 ///
 /// ```
-/// use embedded_optics::prism::index_from_minimum_deviation;
+/// use embedded_optics::optics::prism::index_from_minimum_deviation;
 /// let a = 60f64.to_radians();
 /// let n: f64 = index_from_minimum_deviation(a, 38.6467f64.to_radians()).unwrap();
 /// assert!((n - 1.5168).abs() < 1e-5);
@@ -95,7 +95,7 @@ pub fn index_from_minimum_deviation<S: Scalar>(apex: S, min_deviation: S) -> Res
 /// [`Dispersion::slope_per_um`]).
 ///
 /// ```
-/// use embedded_optics::prism::angular_dispersion;
+/// use embedded_optics::optics::prism::angular_dispersion;
 /// let d: f64 = angular_dispersion(1.5, 60f64.to_radians(), -0.05).unwrap();
 /// assert!(d < 0.0);
 /// ```

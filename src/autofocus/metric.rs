@@ -96,7 +96,7 @@ impl<'a, P: Pixel> Roi<'a, P> {
     /// last row ends beyond the slice.
     ///
     /// ```
-    /// use embedded_optics::focus_metric::Roi;
+    /// use embedded_optics::autofocus::metric::Roi;
     /// let frame = [0u8; 64 * 48];
     /// // A 16 × 16 window at (8, 4) of a 64-pixel-wide frame.
     /// let roi = Roi::new(&frame, 4 * 64 + 8, 16, 16, 64).unwrap();
@@ -215,7 +215,7 @@ fn neighbourhoods<'a, P: Pixel>(
 /// 3 × 3.
 ///
 /// ```
-/// use embedded_optics::focus_metric::{tenengrad, Roi};
+/// use embedded_optics::autofocus::metric::{tenengrad, Roi};
 /// // A vertical edge from 0 to 10: gx = 40 on the two interior columns.
 /// let img: [u8; 16] = [0, 0, 10, 10, 0, 0, 10, 10, 0, 0, 10, 10, 0, 0, 10, 10];
 /// let roi = Roi::whole(&img, 4, 4).unwrap();
@@ -245,7 +245,7 @@ pub fn tenengrad<P: Pixel>(roi: &Roi<'_, P>, threshold: u64) -> Result<u64, Erro
 /// 3 × 3.
 ///
 /// ```
-/// use embedded_optics::focus_metric::{laplacian_variance, Roi};
+/// use embedded_optics::autofocus::metric::{laplacian_variance, Roi};
 /// let flat = [7u16; 25];
 /// assert_eq!(laplacian_variance(&Roi::whole(&flat, 5, 5).unwrap()).unwrap(), 0);
 /// ```
@@ -280,7 +280,7 @@ pub fn laplacian_variance<P: Pixel>(roi: &Roi<'_, P>) -> Result<u64, Error> {
 /// least 3 pixels wide.
 ///
 /// ```
-/// use embedded_optics::focus_metric::{brenner, Roi};
+/// use embedded_optics::autofocus::metric::{brenner, Roi};
 /// let row: [u8; 4] = [0, 0, 3, 3];
 /// // Pairs (0, 3) and (0, 3): mean of 9 and 9.
 /// assert_eq!(brenner(&Roi::whole(&row, 4, 1).unwrap()).unwrap(), 9 * 256);
@@ -347,7 +347,7 @@ impl FocusMetric {
     /// The metric of `roi`, optionally divided by its mean brightness (Q8).
     ///
     /// ```
-    /// use embedded_optics::focus_metric::{FocusMetric, Normalisation, Roi};
+    /// use embedded_optics::autofocus::metric::{FocusMetric, Normalisation, Roi};
     /// let img: [u8; 9] = [10, 10, 10, 10, 50, 10, 10, 10, 10];
     /// let roi = Roi::whole(&img, 3, 3).unwrap();
     /// let v = FocusMetric::Brenner.evaluate(&roi, Normalisation::None).unwrap();

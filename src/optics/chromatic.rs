@@ -6,9 +6,9 @@
 //! law. Focal lengths are in any one length unit (mm in the examples); the result
 //! carries the same unit. Indices are relative to the air around the lens.
 
-use crate::dispersion::{Dispersion, LINE_C_NM, LINE_D_HELIUM_NM, LINE_F_NM, check_abbe};
 use crate::error::{Error, Quantity};
-use crate::refraction::check_index;
+use crate::optics::dispersion::{Dispersion, LINE_C_NM, LINE_D_HELIUM_NM, LINE_F_NM, check_abbe};
+use crate::optics::refraction::check_index;
 use crate::scalar::Scalar;
 
 /// Checks a focal length: finite and non-zero (negative for a diverging lens).
@@ -33,7 +33,7 @@ fn refractivity<S: Scalar>(n: S) -> Result<S, Error> {
 /// `f_design` at index `n_design`: `f (n_design − 1)/(n_at − 1)`.
 ///
 /// ```
-/// use embedded_optics::chromatic::focal_length_at_index;
+/// use embedded_optics::optics::chromatic::focal_length_at_index;
 /// let f_blue: f64 = focal_length_at_index(50.0, 1.5168, 1.5224).unwrap();
 /// assert!(f_blue < 50.0);
 /// ```
@@ -46,8 +46,8 @@ pub fn focal_length_at_index<S: Scalar>(f_design: S, n_design: S, n_at: S) -> Re
 /// `f_design` at `design_um`.
 ///
 /// ```
-/// use embedded_optics::chromatic::focal_length;
-/// use embedded_optics::dispersion::Sellmeier;
+/// use embedded_optics::optics::chromatic::focal_length;
+/// use embedded_optics::optics::dispersion::Sellmeier;
 /// let silica = Sellmeier::<f64>::fused_silica();
 /// let f_red = focal_length(&silica, 100.0, 0.5876, 0.6563).unwrap();
 /// assert!(f_red > 100.0);
@@ -69,8 +69,8 @@ pub fn focal_length<S: Scalar, D: Dispersion<S>>(
 /// with focal length `f_design` at `design_um`.
 ///
 /// ```
-/// use embedded_optics::chromatic::focal_shift;
-/// use embedded_optics::dispersion::Sellmeier;
+/// use embedded_optics::optics::chromatic::focal_shift;
+/// use embedded_optics::optics::dispersion::Sellmeier;
 /// let silica = Sellmeier::<f64>::fused_silica();
 /// // F-to-C shift of a 100 mm silica singlet: about f/V = 1.47 mm.
 /// let d = focal_shift(&silica, 100.0, 0.5876, 0.4861, 0.6563).unwrap();
@@ -93,7 +93,7 @@ pub fn focal_shift<S: Scalar, D: Dispersion<S>>(
 /// `f (nd − 1)(nF − nC)/((nF − 1)(nC − 1))`, about 1 % larger for crown glass).
 ///
 /// ```
-/// use embedded_optics::chromatic::focal_shift_abbe;
+/// use embedded_optics::optics::chromatic::focal_shift_abbe;
 /// let d: f64 = focal_shift_abbe(100.0, 64.17).unwrap();
 /// assert!((d - 1.558).abs() < 1e-3);
 /// ```
@@ -106,7 +106,7 @@ pub fn focal_shift_abbe<S: Scalar>(f: S, vd: S) -> Result<S, Error> {
 /// `f₂ = −f (V₁ − V₂)/V₂`.
 ///
 /// ```
-/// use embedded_optics::chromatic::achromat_split_abbe;
+/// use embedded_optics::optics::chromatic::achromat_split_abbe;
 /// let (f1, f2) = achromat_split_abbe(100.0f64, 64.17, 36.37).unwrap();
 /// assert!((1.0 / f1 + 1.0 / f2 - 0.01).abs() < 1e-12);
 /// ```
@@ -141,8 +141,8 @@ pub fn secondary_spectrum_abbe<S: Scalar>(f: S, p1: S, v1: S, p2: S, v2: S) -> R
 /// the d line and equal focal lengths at F and C.
 ///
 /// ```
-/// use embedded_optics::chromatic::Achromat;
-/// use embedded_optics::dispersion::Cauchy;
+/// use embedded_optics::optics::chromatic::Achromat;
+/// use embedded_optics::optics::dispersion::Cauchy;
 /// let crown = Cauchy::from_nd_vd(1.5168f64, 64.17).unwrap();
 /// let flint = Cauchy::from_nd_vd(1.6200, 36.37).unwrap();
 /// let lens = Achromat::design(100.0, &crown, &flint).unwrap();

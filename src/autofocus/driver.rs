@@ -10,8 +10,9 @@
 //! ```
 //! use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
 //! use embedded_hal_mock::eh1::i2c::{Mock, Transaction as Write};
-//! use embedded_optics::actuator_driver::{BusLayout, FocusActuatorDriver, MotionProfile};
-//! // Our camera rig's actuator: 10-bit code in the top of a 16-bit word at 0x0C.
+//! use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, MotionProfile};
+//! // Our camera rig's actuator at 0x0C: a 10-bit code in bits 13..4 of a
+//! // 16-bit big-endian word (code << 4), a layout common among 10-bit VCM drivers.
 //! let layout = BusLayout {
 //!     address: 0x0C, code_bits: 10, register: None, shift: 4, fixed_bits: 0, data_bytes: 2,
 //! };
@@ -31,7 +32,7 @@
 //! delay.done();
 //! ```
 
-use crate::actuator::Approach;
+use crate::autofocus::actuator::Approach;
 use crate::error::{Error, Quantity};
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::I2c;

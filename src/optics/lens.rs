@@ -60,7 +60,7 @@ fn nonzero<S: Scalar>(x: S, q: Quantity) -> Result<S, Error> {
 /// `u` positive.
 ///
 /// ```
-/// use embedded_optics::lens::image_distance;
+/// use embedded_optics::optics::lens::image_distance;
 /// // A 4 mm lens focused on a subject 100 mm away: image 4.1667 mm behind it.
 /// let v: f64 = image_distance(4.0, 100.0).unwrap();
 /// assert!((v - 100.0 * 4.0 / 96.0).abs() < 1e-12);
@@ -76,7 +76,7 @@ pub fn image_distance<S: Scalar>(focal_length: S, object_distance: S) -> Result<
 /// real, inverted image).
 ///
 /// ```
-/// use embedded_optics::lens::magnification;
+/// use embedded_optics::optics::lens::magnification;
 /// let m: f64 = magnification(4.0, 100.0).unwrap();
 /// assert!((m + 4.0 / 96.0).abs() < 1e-12);
 /// ```
@@ -90,10 +90,10 @@ pub fn magnification<S: Scalar>(focal_length: S, object_distance: S) -> Result<S
 /// `x'`, for an object `x` in front of the front focal point (`x = u − f`).
 ///
 /// Firmware likes this form: `x'` is directly the lens extension needed to focus
-/// (see [`crate::focus::lens_extension`]). `x = 0` is [`Error::DivisionByZero`].
+/// (see [`crate::autofocus::focus::lens_extension`]). `x = 0` is [`Error::DivisionByZero`].
 ///
 /// ```
-/// use embedded_optics::lens::newtonian_image_offset;
+/// use embedded_optics::optics::lens::newtonian_image_offset;
 /// let x_img: f64 = newtonian_image_offset(4.0, 96.0).unwrap();
 /// assert!((x_img - 16.0 / 96.0).abs() < 1e-12);
 /// ```
@@ -111,8 +111,8 @@ pub fn newtonian_image_offset<S: Scalar>(focal_length: S, object_offset: S) -> R
 /// crate (1.0 to 4.5). The result is in the reciprocal of the curvature's unit.
 ///
 /// ```
-/// use embedded_optics::lens::lensmaker_power;
-/// // Symmetric biconvex N-BK7 lens (n 1.5168), R = ±50 mm, in air: f ≈ 48.4 mm.
+/// use embedded_optics::optics::lens::lensmaker_power;
+/// // Symmetric biconvex lens of glass 517642 (nd 1.5168), R = ±50 mm, in air: f ≈ 48.4 mm.
 /// let p: f64 = lensmaker_power(1.5168, 1.0, 1.0 / 50.0, -1.0 / 50.0).unwrap();
 /// assert!((1.0 / p - 48.375).abs() < 1e-3);
 /// ```
@@ -122,8 +122,8 @@ pub fn lensmaker_power<S: Scalar>(
     curvature_front: S,
     curvature_back: S,
 ) -> Result<S, Error> {
-    let n_lens = crate::refraction::check_index(n_lens)?;
-    let n_medium = crate::refraction::check_index(n_medium)?;
+    let n_lens = crate::optics::refraction::check_index(n_lens)?;
+    let n_medium = crate::optics::refraction::check_index(n_medium)?;
     let c1 = finite(curvature_front, Quantity::OpticalPower)?;
     let c2 = finite(curvature_back, Quantity::OpticalPower)?;
     n_lens.div(n_medium)?.sub(S::ONE)?.mul(c1.sub(c2)?)
@@ -156,7 +156,7 @@ pub struct TwoLensSystem<S> {
 /// focal length: [`Error::DivisionByZero`]. The gap must be zero or positive.
 ///
 /// ```
-/// use embedded_optics::lens::two_lens_system;
+/// use embedded_optics::optics::lens::two_lens_system;
 /// // Two f = 100 mm lenses 50 mm apart: EFL 66.67 mm, BFD 33.33 mm.
 /// let s = two_lens_system(0.01f64, 0.01, 50.0).unwrap();
 /// assert!((s.effective_focal_length - 200.0 / 3.0).abs() < 1e-9);
@@ -201,9 +201,9 @@ pub struct LiquidLensFocus<S> {
 /// [`I8F24`](fixed::types::I8F24)).
 ///
 /// ```
-/// use embedded_optics::lens::liquid_lens_focus;
+/// use embedded_optics::optics::lens::liquid_lens_focus;
 /// // 4 mm lens, liquid lens at +10 D, 1 mm in front.
-/// let s: embedded_optics::lens::LiquidLensFocus<f64> =
+/// let s: embedded_optics::optics::lens::LiquidLensFocus<f64> =
 ///     liquid_lens_focus(0.004, 10.0, 0.001).unwrap();
 /// assert!((s.focal_length - 0.004 / 1.03).abs() < 1e-12);
 /// ```
@@ -231,7 +231,7 @@ pub fn liquid_lens_focus<S: Scalar>(
 /// subject's vergence, `D = 1/u`.
 ///
 /// ```
-/// use embedded_optics::lens::liquid_power_for_subject;
+/// use embedded_optics::optics::lens::liquid_power_for_subject;
 /// let d: f32 = liquid_power_for_subject(0.1).unwrap();
 /// assert!((d - 10.0).abs() < 1e-5);
 /// ```
@@ -250,7 +250,7 @@ pub fn liquid_power_for_subject<S: Scalar>(distance: S) -> Result<S, Error> {
 /// paraxial relation for simulation and instrument design.
 ///
 /// ```
-/// use embedded_optics::lens::far_point_correction;
+/// use embedded_optics::optics::lens::far_point_correction;
 /// // Far point 50 cm in front, lens at the eye: −2 D.
 /// let f: f64 = far_point_correction(0.5, 0.0).unwrap();
 /// assert!((f + 2.0).abs() < 1e-12);
@@ -269,7 +269,7 @@ pub fn far_point_correction<S: Scalar>(far_point: S, vertex: S) -> Result<S, Err
 /// Both distances must lie beyond the lens.
 ///
 /// ```
-/// use embedded_optics::lens::near_point_addition;
+/// use embedded_optics::optics::lens::near_point_addition;
 /// // Near point 1 m, reading at 25 cm, lens at the eye: +3 D.
 /// let f: f64 = near_point_addition(1.0, 0.25, 0.0).unwrap();
 /// assert!((f - 3.0).abs() < 1e-12);
@@ -294,7 +294,7 @@ pub fn near_point_addition<S: Scalar>(
 /// the eye.
 ///
 /// ```
-/// use embedded_optics::lens::power_at_vertex;
+/// use embedded_optics::optics::lens::power_at_vertex;
 /// // A −10 D spectacle lens at 12 mm equals a −8.93 D contact lens.
 /// let f: f64 = power_at_vertex(-10.0, 0.012, 0.0).unwrap();
 /// assert!((f + 10.0 / 1.12).abs() < 1e-12);

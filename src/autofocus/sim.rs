@@ -26,7 +26,7 @@
 //! of contrast 1 gives about 65 536).
 //!
 //! ```
-//! use embedded_optics::focus_sim::{LensModel, Scene, SimCamera};
+//! use embedded_optics::autofocus::sim::{LensModel, Scene, SimCamera};
 //! let lens = LensModel::<f64>::phone_module();
 //! let scene = Scene { vergence_dpt: 2.0, contrast: 0.8 }; // 50 cm away
 //! let target = lens.code_for_scene(&scene).unwrap();
@@ -35,23 +35,24 @@
 //! assert!(cam.focus_error_dof().unwrap() < 1.0);
 //! ```
 
-use crate::actuator::{ActuatorModel, CalibrationPoint};
-use crate::af_assist::FocusTarget;
-use crate::error::{Error, Quantity};
-use crate::focus::{
+use crate::autofocus::actuator::{ActuatorModel, CalibrationPoint};
+use crate::autofocus::assist::FocusTarget;
+use crate::autofocus::focus::{
     SubjectDistance, blur_circle_diameter, depth_of_focus_at_magnification,
     extension_ratio_for_vergence, hyperfocal_extension, subject_distance_from_extension,
 };
-use crate::focus_metric::{Roi, tenengrad};
-use crate::focus_search::{FocusSearch, Step, split_floor, unit_to_q16};
+use crate::autofocus::metric::{Roi, tenengrad};
+use crate::autofocus::search::{FocusSearch, Step, unit_to_q16};
+use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::scalar::Scalar;
+use crate::scalar::split_floor;
 
 const SIM: Quantity = Quantity::SimulationSetting;
 
 /// The crate's one seeded generator (SplitMix64, integer only), under the name
 /// the autofocus simulation has always used.
-pub use crate::refractometer::forward::Rng as SimRng;
+use crate::rng::Rng;
 
 /// The camera module: lens, actuator and sensor, plus the metric model.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -186,7 +187,7 @@ impl<S: Scalar> LensModel<S> {
     /// two agree to the rounding of the infinity code.
     ///
     /// [`Error::OutOfRange`] of [`Quantity::ActuatorCode`] when infinity lies
-    /// off travel or `code_max` exceeds [`MAX_CODE`](crate::actuator::MAX_CODE);
+    /// off travel or `code_max` exceeds [`MAX_CODE`](crate::autofocus::actuator::MAX_CODE);
     /// [`Error::Overflow`] when the macro distance does not fit the type.
     pub fn factory_calibration(&self) -> Result<ActuatorModel<S>, Error> {
         self.check()?;
@@ -281,7 +282,7 @@ pub struct SimCamera<S> {
     lens: LensModel<S>,
     scene: Scene<S>,
     position: i32,
-    rng: SimRng,
+    rng: Rng,
 }
 
 impl<S: Scalar> SimCamera<S> {
@@ -301,7 +302,7 @@ impl<S: Scalar> SimCamera<S> {
             lens,
             scene,
             position: start_code,
-            rng: SimRng::new(seed),
+            rng: Rng::new(seed),
         })
     }
 
@@ -397,7 +398,7 @@ pub fn textured_target_metric(blur_diameter_px: u32, seed: u64) -> Result<u64, E
     if blur_diameter_px > TEXTURE_BLUR_MAX_PX {
         return Err(Error::OutOfRange(SIM));
     }
-    let mut rng = SimRng::new(seed);
+    let mut rng = Rng::new(seed);
     let mut texture = [[0u8; TEXTURE_SIDE]; TEXTURE_SIDE];
     for y in (0..TEXTURE_SIDE).step_by(2) {
         for x in (0..TEXTURE_SIDE).step_by(2) {

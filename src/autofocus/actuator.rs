@@ -23,11 +23,11 @@
 //!
 //! Codes are at most 12 bits (0 to [`MAX_CODE`]). Offsets are kept in codes so that
 //! they stay exact in every number type; code arithmetic is integer, so
-//! [`I8F24`](fixed::types::I8F24) works in metres (see [`crate::lens`]).
+//! [`I8F24`](fixed::types::I8F24) works in metres (see [`crate::optics::lens`]).
 
+use crate::autofocus::focus::SubjectDistance;
 use crate::error::{Error, Quantity};
-use crate::focus::SubjectDistance;
-use crate::lens::positive;
+use crate::optics::lens::positive;
 use crate::scalar::Scalar;
 
 /// Largest actuator code (12-bit DAC).
@@ -104,8 +104,8 @@ struct Node<S> {
 /// Calibrated model of a focus actuator on a lens of known focal length.
 ///
 /// ```
-/// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-/// use embedded_optics::focus::SubjectDistance;
+/// use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+/// use embedded_optics::autofocus::focus::SubjectDistance;
 /// use fixed::types::I8F24;
 /// let m = |x: f64| I8F24::from_num(x);
 /// // Our camera rig's module: 4 mm lens, infinity at code 300, 10 cm at code 700.
@@ -137,7 +137,7 @@ pub struct ActuatorModel<S> {
 }
 
 /// `x · 2^16` rounded to an integer (the code units here, and the Q16 ratios
-/// of [`focus_search`](crate::focus_search)), built digit by digit so that no
+/// of [`autofocus::search`](crate::autofocus::search)), built digit by digit so that no
 /// intermediate leaves the range of [`I8F24`](fixed::types::I8F24).
 pub(crate) fn to_code_units<S: Scalar>(x: S) -> Result<i64, Error> {
     let whole = x.round_to_i32()?;
@@ -366,7 +366,7 @@ impl<S: Scalar> ActuatorModel<S> {
         ratio: S,
         conditions: &OperatingConditions<S>,
     ) -> Result<u16, Error> {
-        let w = crate::lens::finite(ratio, Quantity::Value)?;
+        let w = crate::optics::lens::finite(ratio, Quantity::Value)?;
         let (a, b) = self.segment(|n| w <= n.ratio)?;
         let frac = w.sub(a.ratio)?.div(b.ratio.sub(a.ratio)?)?;
         let span = i64::from(b.code) - i64::from(a.code);
@@ -406,8 +406,8 @@ impl<S: Scalar> ActuatorModel<S> {
     /// [`Quantity::ActuatorCode`].
     ///
     /// ```
-    /// use embedded_optics::actuator::{ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture};
-    /// use embedded_optics::focus::SubjectDistance;
+    /// use embedded_optics::autofocus::actuator::{ActuatorModel, Approach, CalibrationPoint, OperatingConditions, Posture};
+    /// use embedded_optics::autofocus::focus::SubjectDistance;
     /// use embedded_optics::Error;
     /// let model = ActuatorModel::from_table(0.004f32, &[
     ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
@@ -452,8 +452,8 @@ impl<S: Scalar> ActuatorModel<S> {
     /// [`Error::Overflow`] (treat it as infinity).
     ///
     /// ```
-    /// use embedded_optics::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
-    /// use embedded_optics::focus::SubjectDistance;
+    /// use embedded_optics::autofocus::actuator::{ActuatorModel, CalibrationPoint, OperatingConditions};
+    /// use embedded_optics::autofocus::focus::SubjectDistance;
     /// let model = ActuatorModel::from_table(0.004f64, &[
     ///     CalibrationPoint { code: 300, subject: SubjectDistance::Infinity },
     ///     CalibrationPoint { code: 700, subject: SubjectDistance::Finite(0.1) },

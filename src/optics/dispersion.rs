@@ -15,7 +15,7 @@
 //! memory; they agree with the catalogue figures the tests check to 1e-6 in Vd).
 
 use crate::error::{Error, Quantity};
-use crate::refraction::check_index;
+use crate::optics::refraction::check_index;
 use crate::scalar::Scalar;
 
 /// Hg h line, nm.
@@ -98,7 +98,7 @@ fn check_coefficient<S: Scalar>(x: S) -> Result<S, Error> {
 /// Unused terms have `B = 0`. Glass catalogues publish B and C this way.
 ///
 /// ```
-/// use embedded_optics::dispersion::{Dispersion, Sellmeier, LINE_D_HELIUM_NM};
+/// use embedded_optics::optics::dispersion::{Dispersion, Sellmeier, LINE_D_HELIUM_NM};
 /// let silica = Sellmeier::<f64>::fused_silica();
 /// let nd = silica.index_nm(LINE_D_HELIUM_NM).unwrap();
 /// assert!((nd - 1.45846).abs() < 1e-5);
@@ -195,7 +195,7 @@ impl<S: Scalar> Dispersion<S> for Sellmeier<S> {
 /// form for the visible, far from absorption bands.
 ///
 /// ```
-/// use embedded_optics::dispersion::{Cauchy, Dispersion};
+/// use embedded_optics::optics::dispersion::{Cauchy, Dispersion};
 /// let law = Cauchy::new(1.5046f64, 0.00420, 0.0, (0.4, 0.8)).unwrap();
 /// assert!((law.index_um(0.5).unwrap() - (1.5046 + 0.0042 / 0.25)).abs() < 1e-12);
 /// ```
@@ -230,13 +230,13 @@ impl<S: Scalar> Cauchy<S> {
     ///
     /// It matches nd exactly at the d line and nF − nC = (nd − 1)/Vd exactly.
     /// Measured against the catalogue Sellmeier laws (`tests/world_dispersion.rs`):
-    /// for N-BK7 and fused silica it stays within 4.3e-4 over 0.40–0.80 µm,
+    /// for glass 517642 and fused silica it stays within 4.3e-4 over 0.40–0.80 µm,
     /// 2.7e-4 over 0.45–0.75 µm and 6.5e-5 inside F–C (0.486–0.656 µm); for the
-    /// flint F2 within 2.2e-3, 5.5e-4 and 1.3e-4. Use the Sellmeier law when the
+    /// flint 620364 within 2.2e-3, 5.5e-4 and 1.3e-4. Use the Sellmeier law when the
     /// catalogue gives it.
     ///
     /// ```
-    /// use embedded_optics::dispersion::{Cauchy, Dispersion, LINE_F_NM, LINE_C_NM};
+    /// use embedded_optics::optics::dispersion::{Cauchy, Dispersion, LINE_F_NM, LINE_C_NM};
     /// let glass = Cauchy::from_nd_vd(1.5168f64, 64.17).unwrap();
     /// let df = glass.index_nm(LINE_F_NM).unwrap() - glass.index_nm(LINE_C_NM).unwrap();
     /// assert!((df - 0.5168 / 64.17).abs() < 1e-12);
@@ -324,7 +324,7 @@ fn abbe<S: Scalar>(n_mid: S, n_short: S, n_long: S) -> Result<S, Error> {
 /// for dispersion (high V, low dispersion).
 ///
 /// ```
-/// use embedded_optics::dispersion::abbe_vd;
+/// use embedded_optics::optics::dispersion::abbe_vd;
 /// let v: f64 = abbe_vd(1.5168, 1.52238, 1.51432).unwrap();
 /// assert!((v - 64.12).abs() < 0.01);
 /// ```
@@ -367,7 +367,7 @@ pub struct GlassFigures<S> {
 /// nd, Vd, Ve and P(g,F) of a law, for comparing a model with a datasheet.
 ///
 /// ```
-/// use embedded_optics::dispersion::{figures, Sellmeier};
+/// use embedded_optics::optics::dispersion::{figures, Sellmeier};
 /// let f = figures(&Sellmeier::<f64>::fused_silica()).unwrap();
 /// assert!((f.vd - 67.8).abs() < 0.05);
 /// ```

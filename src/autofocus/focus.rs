@@ -1,13 +1,13 @@
 //! Focus geometry: lens extension, depth of field, hyperfocal distance, depth of
 //! focus, circle of confusion, and how many lens positions a focus sweep needs.
 //!
-//! Lengths are in any one unit (see [`crate::lens`] for the fixed-point ranges:
+//! Lengths are in any one unit (see [`crate::optics::lens`] for the fixed-point ranges:
 //! metres suit [`I8F24`](fixed::types::I8F24) for phone modules; circles of
 //! confusion of a few micrometres are then held to 1–3 %, so run depth of
 //! field in [`I32F32`](fixed::types::I32F32) or `f32` where that matters).
 
 use crate::error::{Error, Quantity};
-use crate::lens::{finite, positive};
+use crate::optics::lens::{finite, positive};
 use crate::scalar::Scalar;
 
 /// A subject distance that may be infinite (a focus position can be "at infinity",
@@ -27,7 +27,7 @@ impl<S: Scalar> SubjectDistance<S> {
     /// so it is the quantity the actuator model interpolates in.
     ///
     /// ```
-    /// use embedded_optics::focus::SubjectDistance;
+    /// use embedded_optics::autofocus::focus::SubjectDistance;
     /// let w = SubjectDistance::Finite(0.1f64).extension_ratio(0.004).unwrap();
     /// assert!((w - 0.004 / 0.096).abs() < 1e-15);
     /// assert_eq!(SubjectDistance::Infinity.extension_ratio(0.004f64), Ok(0.0));
@@ -51,7 +51,7 @@ impl<S: Scalar> SubjectDistance<S> {
     /// a ratio of zero or less (focused at or beyond infinity).
     ///
     /// ```
-    /// use embedded_optics::focus::SubjectDistance;
+    /// use embedded_optics::autofocus::focus::SubjectDistance;
     /// let u = SubjectDistance::from_extension_ratio(0.004f64, 0.004 / 0.096).unwrap();
     /// let SubjectDistance::Finite(u) = u else { unreachable!() };
     /// assert!((u - 0.1).abs() < 1e-15);
@@ -71,7 +71,7 @@ impl<S: Scalar> SubjectDistance<S> {
 /// `e = f²/(u − f)`, zero at infinity. The subject must be beyond the focal length.
 ///
 /// ```
-/// use embedded_optics::focus::{lens_extension, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{lens_extension, SubjectDistance};
 /// use fixed::types::I8F24;
 /// // A 4 mm phone lens, subject at 10 cm: the lens moves out 0.1667 mm (metres here).
 /// let f = I8F24::from_num(0.004);
@@ -86,7 +86,7 @@ pub fn lens_extension<S: Scalar>(focal_length: S, subject: SubjectDistance<S>) -
 /// `u = f + f²/e` (inverse of [`lens_extension`]); infinity for zero extension.
 ///
 /// ```
-/// use embedded_optics::focus::{subject_distance_from_extension, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{subject_distance_from_extension, SubjectDistance};
 /// let u = subject_distance_from_extension(4.0f64, 16.0 / 96.0).unwrap();
 /// assert_eq!(u, SubjectDistance::Finite(100.0));
 /// ```
@@ -117,7 +117,7 @@ pub fn subject_distance_from_extension<S: Scalar>(
 /// the focal length) is [`Error::OutOfRange`] of [`Quantity::Length`].
 ///
 /// ```
-/// use embedded_optics::focus::{extension_ratio_for_vergence, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{extension_ratio_for_vergence, SubjectDistance};
 /// // 4 mm lens, subject at 2 dioptres (50 cm): f·v = 0.008.
 /// let w: f64 = extension_ratio_for_vergence(0.004, 2.0).unwrap();
 /// let same = SubjectDistance::Finite(0.5).extension_ratio(0.004).unwrap();
@@ -145,7 +145,7 @@ pub fn extension_ratio_for_vergence<S: Scalar>(focal_length: S, vergence: S) -> 
 /// [`depth_of_focus_at_magnification`]; a contrast metric falls as it grows.
 ///
 /// ```
-/// use embedded_optics::focus::{blur_circle_diameter, depth_of_focus_at_magnification};
+/// use embedded_optics::autofocus::focus::{blur_circle_diameter, depth_of_focus_at_magnification};
 /// let c = 2.24e-6f64;
 /// let half_depth = depth_of_focus_at_magnification(2.0, c, 0.05).unwrap() / 2.0;
 /// let b = blur_circle_diameter(2.0, half_depth, 0.05).unwrap();
@@ -177,7 +177,7 @@ fn check_magnification<S: Scalar>(m: S) -> Result<S, Error> {
 /// number type, unlike `H` itself.
 ///
 /// ```
-/// use embedded_optics::focus::{hyperfocal_distance, hyperfocal_extension, lens_extension, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{hyperfocal_distance, hyperfocal_extension, lens_extension, SubjectDistance};
 /// let (f, n, c) = (0.004f64, 2.0, 2.24e-6);
 /// let h = hyperfocal_distance(f, n, c).unwrap();
 /// let e = lens_extension(f, SubjectDistance::Finite(h)).unwrap();
@@ -207,7 +207,7 @@ fn check_f_number<S: Scalar>(n: S) -> Result<S, Error> {
 /// of `c·N` (which fixed point in metres would resolve coarsely).
 ///
 /// ```
-/// use embedded_optics::focus::hyperfocal_distance;
+/// use embedded_optics::autofocus::focus::hyperfocal_distance;
 /// // 50 mm at f/8 with c = 0.03 mm: 10.47 m.
 /// let h: f64 = hyperfocal_distance(50.0, 8.0, 0.03).unwrap();
 /// assert!((h - (2500.0 / 0.24 + 50.0)).abs() < 1e-9);
@@ -240,9 +240,9 @@ pub struct DepthOfField<S> {
 /// with `H` from [`hyperfocal_distance`]. The focus distance must exceed `f`.
 ///
 /// ```
-/// use embedded_optics::focus::{depth_of_field, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{depth_of_field, SubjectDistance};
 /// // 50 mm f/8, c = 0.03 mm, focused at 5 m: about 3.39 m to 9.53 m.
-/// let d: embedded_optics::focus::DepthOfField<f64> =
+/// let d: embedded_optics::autofocus::focus::DepthOfField<f64> =
 ///     depth_of_field(50.0, 8.0, 0.03, 5000.0).unwrap();
 /// assert!((d.near - 3389.4).abs() < 0.1);
 /// let SubjectDistance::Finite(far) = d.far else { panic!() };
@@ -278,7 +278,7 @@ pub fn depth_of_field<S: Scalar>(
 /// by about this much; see [`plan_focus_sweep`].
 ///
 /// ```
-/// use embedded_optics::focus::{depth_of_focus, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{depth_of_focus, SubjectDistance};
 /// // f/2, c = 2.24 µm (two 1.12 µm pixels), at infinity: 8.96 µm.
 /// let t: f64 = depth_of_focus(0.004, 2.0, 2.24e-6, SubjectDistance::Infinity).unwrap();
 /// assert!((t - 8.96e-6).abs() < 1e-15);
@@ -300,7 +300,7 @@ pub fn depth_of_focus<S: Scalar>(
 /// [`depth_of_focus`] reduces to, for callers that hold `m` rather than a distance.
 ///
 /// ```
-/// use embedded_optics::focus::depth_of_focus_at_magnification;
+/// use embedded_optics::autofocus::focus::depth_of_focus_at_magnification;
 /// let t: f64 = depth_of_focus_at_magnification(2.0, 2.24e-6, 0.0).unwrap();
 /// assert!((t - 8.96e-6).abs() < 1e-15);
 /// ```
@@ -320,7 +320,7 @@ pub fn depth_of_focus_at_magnification<S: Scalar>(
 /// sensor samples, common practice). `pixels` runs from 0.5 to 16.
 ///
 /// ```
-/// use embedded_optics::focus::circle_of_confusion_from_pitch;
+/// use embedded_optics::autofocus::focus::circle_of_confusion_from_pitch;
 /// let c: f32 = circle_of_confusion_from_pitch(1.12e-6, 2.0).unwrap();
 /// assert!((c - 2.24e-6).abs() < 1e-12);
 /// ```
@@ -350,7 +350,7 @@ impl<S: Scalar> FocusSweepPlan<S> {
     /// Extension of position `index` (0 = far end); `None` beyond the last.
     ///
     /// ```
-    /// use embedded_optics::focus::{plan_focus_sweep, SubjectDistance};
+    /// use embedded_optics::autofocus::focus::{plan_focus_sweep, SubjectDistance};
     /// let plan = plan_focus_sweep(0.004f64, 2.0, 2.24e-6, 0.1, SubjectDistance::Infinity, 0.25)
     ///     .unwrap();
     /// assert_eq!(plan.extension_at(0), Some(0.0));
@@ -376,13 +376,13 @@ impl<S: Scalar> FocusSweepPlan<S> {
 /// toward the near end, but for a phone-class lens that is a few per cent
 /// (`m` = 0.042 for 4 mm at 10 cm) and does not change the count (26 positions
 /// either way in the example below); it matters for macro lenses near 1:1.
-/// [`SearchConfig::from_sweep_plan`](crate::focus_search::SearchConfig::from_sweep_plan)
+/// [`SearchConfig::from_sweep_plan`](crate::autofocus::search::SearchConfig::from_sweep_plan)
 /// turns a plan into contrast-search settings whose coarse step is one position. Errors: `near` not closer than
 /// `far` or inside `f` is [`Error::OutOfRange`]; more than [`MAX_SWEEP_STEPS`]
 /// positions is [`Error::Overflow`].
 ///
 /// ```
-/// use embedded_optics::focus::{plan_focus_sweep, SubjectDistance};
+/// use embedded_optics::autofocus::focus::{plan_focus_sweep, SubjectDistance};
 /// // 4 mm f/2 phone lens, c = 2.24 µm, 10 cm to infinity, 25 % overlap.
 /// let plan = plan_focus_sweep(0.004f64, 2.0, 2.24e-6, 0.1, SubjectDistance::Infinity, 0.25)
 ///     .unwrap();
