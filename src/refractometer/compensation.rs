@@ -275,7 +275,7 @@ impl SucroseCorrectionTable {
     ) -> Result<S, Error> {
         let off_t = Error::OutOfRange(Quantity::Temperature);
         let off_b = Error::OutOfRange(Quantity::ScaleValue);
-        let t = raw.bits(temperature_c).map_err(|_| off_t)?;
+        let t = raw.bits(temperature_c);
         let (r, tau, t_step) = bracket_bits(self.temperatures_c, t, raw).ok_or(off_t)?;
         let edge = lit_bits!(S, 0.005).ok_or(Error::Overflow)?;
         let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
@@ -286,7 +286,7 @@ impl SucroseCorrectionTable {
         } else {
             raw.int(first).saturating_sub(edge)
         };
-        let b = raw.bits(brix).map_err(|_| off_b)?;
+        let b = raw.bits(brix);
         if b < below || b > raw.int(last).saturating_add(edge) {
             return Err(off_b);
         }

@@ -75,43 +75,9 @@ impl<S: Scalar> Raw<S> {
         i64::from(v) << Self::FRAC
     }
 
-    /// `x · 2^frac`, exactly. `Scalar` has no bit access: the integer part,
-    /// then the fraction a few bits at a time by doubling (exact, and an
-    /// addition is cheap) and taking off the nearest integer.
-    pub(super) fn bits(self, x: S) -> Result<i64, Error> {
-        let int_bits = Self::TOTAL - Self::FRAC;
-        // |r| ≤ 1/2 before each chunk, so |r·2^chunk| ≤ 2^(int_bits−2): fits.
-        let chunk = (int_bits - 1).min(16);
-        // Below half the type's range the nearest integer fits the type too.
-        let top = 1i64 << (int_bits - 2).min(30);
-        let (x, base) = if x >= self.whole(top) {
-            (x.sub(self.whole(top))?, top)
-        } else {
-            (x, 0)
-        };
-        let q = i64::from(x.round_to_i32()?);
-        let mut r = x.sub(self.whole(q))?;
-        let mut acc = base + q;
-        let mut done = 0;
-        while done < Self::FRAC {
-            for _ in 0..chunk {
-                r = r.add(r)?;
-            }
-            let d = i64::from(r.round_to_i32()?);
-            r = r.sub(self.whole(d))?;
-            // Modulo 2^64: the bits of a 64-bit `S` fit `i64`, so where the
-            // top of I32F32's range passes 2^63 on the way, the end is right.
-            acc = (acc << chunk).wrapping_add(d);
-            done += chunk;
-        }
-        // The digits past `frac` are zero: the shift is exact.
-        Ok(acc >> (done - Self::FRAC))
-    }
-
-    /// The integer `v` as `S`, for `|v|` within the type's integer range
-    /// (here: the digits and integer parts of [`Raw::bits`]).
-    fn whole(self, v: i64) -> S {
-        S::from_literal_bits(v << Self::FRAC)
+    /// `x · 2^frac`, exactly: the type's own integer representation.
+    pub(super) fn bits(self, x: S) -> i64 {
+        x.raw_bits()
     }
 
     /// The `S` whose bits are `bits`; [`Error::Overflow`] if it does not fit.
@@ -294,7 +260,7 @@ impl LinearTable {
         };
         if let Some(raw) = Raw::<S>::of() {
             let err = Error::OutOfRange(quantity_x);
-            let xb = raw.bits(x).map_err(|_| err)?;
+            let xb = raw.bits(x);
             // x·xd·2^frac against the points' numerators: exact.
             let xs = on_axis(raw, xb, (lo, hi), xd, err)?;
             for w in self.points.windows(2) {
@@ -606,7 +572,7 @@ impl UniformCubicTable {
     /// `y` at `x` in integers: the cubic's value from its exact local
     /// coefficients, one rounding into `S`.
     fn y_at_raw<S: Scalar>(&self, x: S, q: Quantity, raw: Raw<S>) -> Result<S, Error> {
-        let xb = raw.bits(x).map_err(|_| Error::OutOfRange(q))?;
+        let xb = raw.bits(x);
         let (k, s) = self.position(xb, q, raw)?;
         let cubic = self.cubic(k)?;
         // 6·(y − ys[k])·den·2^z, z = frac + 3 (three guard bits).
@@ -637,7 +603,7 @@ impl UniformCubicTable {
     /// entries, then Newton steps on the segment's cubic.
     fn x_at_raw<S: Scalar>(&self, y: S, q: Quantity, raw: Raw<S>) -> Result<S, Error> {
         let out = Error::OutOfRange(q);
-        let yb = raw.bits(y).map_err(|_| out)?;
+        let yb = raw.bits(y);
         let last_segment = self.ys.len() - 2;
         let entry = |i: usize| -> Result<i64, Error> { Ok(raw.int(self.y(i)?)) };
         let ends = (self.y(0)?, self.y(last_segment + 1)?);
@@ -959,13 +925,13 @@ mod tests {
         let r24 = Raw::<I8F24>::of().unwrap();
         for b in patterns(32) {
             let x = I8F24::from_bits(b as i32);
-            assert_eq!(r24.bits(x), Ok(i64::from(x.to_bits())), "{x}");
+            assert_eq!(r24.bits(x), i64::from(x.to_bits()), "{x}");
             assert_eq!(r24.value(b), Ok(x));
         }
         let r32 = Raw::<I32F32>::of().unwrap();
         for b in patterns(64) {
             let x = I32F32::from_bits(b);
-            assert_eq!(r32.bits(x), Ok(x.to_bits()), "{x}");
+            assert_eq!(r32.bits(x), x.to_bits(), "{x}");
             assert_eq!(r32.value(b), Ok(x));
         }
         assert!(r24.value(1 << 31).is_err());

@@ -31,6 +31,10 @@ macro_rules! fixed_scalar {
             fn from_literal_bits(bits: i64) -> Self {
                 <$t>::from_bits(bits as $inner)
             }
+            #[inline(always)]
+            fn raw_bits(self) -> i64 {
+                self.to_bits() as i64
+            }
             fn from_f64(x: f64) -> Result<Self, Error> {
                 fm::f64_to_bits(x, $frac, $total)
                     .map(|b| <$t>::from_bits(b as $inner))

@@ -30,6 +30,10 @@ macro_rules! float_scalar {
             fn from_literal_bits(bits: i64) -> Self {
                 <$t>::from_bits(bits as $bits)
             }
+            #[inline(always)]
+            fn raw_bits(self) -> i64 {
+                self.to_bits() as i64
+            }
             fn from_f64(x: f64) -> Result<Self, Error> {
                 finite(x as $t)
             }

@@ -127,6 +127,21 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     #[doc(hidden)]
     fn from_literal_bits(bits: i64) -> Self;
 
+    /// The value's integer representation in [`Scalar::FORMAT`]: for fixed
+    /// point `value · 2^frac_bits` exactly (sign-extended), for floats the IEEE
+    /// 754 bit pattern (zero-extended). The inverse of what [`lit!`](crate::lit) builds.
+    ///
+    /// Integer code paths (table reads on fixed point) start from it instead
+    /// of rebuilding the bits with arithmetic.
+    ///
+    /// ```
+    /// use embedded_optics::Scalar;
+    /// use fixed::types::I8F24;
+    /// assert_eq!(I8F24::from_i32(3).map(Scalar::raw_bits), Ok(3 << 24));
+    /// assert_eq!(Scalar::raw_bits(-1.0f32), i64::from((-1.0f32).to_bits()));
+    /// ```
+    fn raw_bits(self) -> i64;
+
     /// Checked conversion from `f64` (for inputs and host code; on a core without
     /// FPU it costs a soft-float call for floats).
     fn from_f64(x: f64) -> Result<Self, Error>;

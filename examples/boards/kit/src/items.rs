@@ -251,6 +251,81 @@ pub fn frame_to_brix<S: Tabled>(i: usize) {
     black_box(inst.measure(f, t).ok());
 }
 
+/// Set-up of [`conversion_per_reading`]: the instrument, and one frame fed to
+/// it (boundary found, averaged): what a reading starts from.
+fn conversion_setup_reading<S: Tabled>(
+    i: usize,
+) -> Option<(Refractometer<S>, embedded_optics::refractometer::instrument::Averaged<S>)> {
+    let mut inst: Refractometer<S> = chains::refractometer::<S>().ok()?;
+    let (f, t) = chain_input::<S>(i);
+    let avg = inst.feed(f, t).ok()??;
+    Some((inst, avg))
+}
+
+/// Base of [`conversion_per_reading`].
+pub fn conversion_per_reading_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    black_box(conversion_setup_reading::<S>(i).map(|(_, a)| a));
+}
+
+/// Conversion per reading: averaged boundary position and temperature → nD,
+/// nD at 20 °C, %Brix and the uncertainty of nD at 20 °C (`Instrument::read`,
+/// settling window included).
+pub fn conversion_per_reading<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some((mut inst, avg)) = conversion_setup_reading::<S>(i) else {
+        return;
+    };
+    black_box(inst.read(black_box(&avg)).ok());
+}
+
+/// Factory fit of the hand-written chain (invented, for cost only): index at
+/// the LED from the boundary position in pixels, n = c0 + c1·p + c2·p² + c3·p³.
+const HAND_CUBIC: [f32; 4] = [1.2895, 2.61e-4, -4.1e-8, 1.2e-11];
+
+/// Hand-written chain's dispersion offset, nD − n(LED) (invented, fixed).
+const HAND_DISPERSION: f32 = 3.0e-4;
+
+/// Hand-written chain's temperature corrections, %Brix to add, at 8, 11, 14,
+/// 17, 20 °C × 10, 15, 20, 25, 30 %Brix: every third row of OIV-MA-AS2-02
+/// Table I (the crate's `OIV_TABLE_I_5_TO_20_C`), as an engineer would copy it.
+const HAND_CORRECTIONS: [[f32; 5]; 5] = [
+    [-0.69, -0.73, -0.76, -0.79, -0.82],
+    [-0.54, -0.57, -0.59, -0.61, -0.63],
+    [-0.38, -0.39, -0.40, -0.42, -0.43],
+    [-0.20, -0.20, -0.21, -0.21, -0.22],
+    [0.0, 0.0, 0.0, 0.0, 0.0],
+];
+
+/// The user's alternative to the crate's conversion, written by hand in plain
+/// `f32` without checks: boundary position → index at the LED (factory cubic),
+/// a fixed dispersion offset to nD, %Brix at the sample temperature by the
+/// published 5th-order polynomial fit to the ICUMSA table, then the bilinear
+/// temperature correction. No uncertainty, no range checks, no settling.
+pub fn hand_written_brix(i: usize) {
+    black_box(row::<f32>(i));
+    let position = black_box(12_000_000 + (i as i32 % 17) * 1_000_000);
+    let t = black_box(8.0 + (i % 12) as f32);
+    let p = position as f32 * (1.0 / 65536.0);
+    let [c0, c1, c2, c3] = HAND_CUBIC;
+    let n_led = c0 + p * (c1 + p * (c2 + p * c3));
+    let nd = n_led + HAND_DISPERSION;
+    let brix_t = ((((11758.74 * nd - 88885.21) * nd + 270177.93) * nd - 413145.80) * nd
+        + 318417.95)
+        * nd
+        - 99127.4536;
+    // Cell and weights on the uniform grid (clamped to the table).
+    let ft = ((t - 8.0) * (1.0 / 3.0)).clamp(0.0, 3.999);
+    let fb = ((brix_t - 10.0) * 0.2).clamp(0.0, 3.999);
+    let (it, ib) = ((ft as usize).min(3), (fb as usize).min(3));
+    let (wt, wb) = (ft - it as f32, fb - ib as f32);
+    let row0 = HAND_CORRECTIONS[it];
+    let row1 = HAND_CORRECTIONS[it + 1];
+    let lo = row0[ib] + wb * (row0[ib + 1] - row0[ib]);
+    let hi = row1[ib] + wb * (row1[ib + 1] - row1[ib]);
+    black_box(brix_t + lo + wt * (hi - lo));
+}
+
 /// A phone module's factory table (invented): infinity at 300, 50 cm at 372,
 /// 10 cm at 700 (4 mm lens).
 fn actuator_model<S: Tabled>() -> Option<ActuatorModel<S>> {
@@ -430,6 +505,15 @@ macro_rules! per_type {
                 run: frame_to_brix::<$t>,
             },
             Item {
+                name: concat!(
+                    "chain: conversion per reading (position, T -> nD20, %Brix, uncertainty)/",
+                    $n
+                ),
+                units: 1,
+                base: Some(conversion_per_reading_base::<$t>),
+                run: conversion_per_reading::<$t>,
+            },
+            Item {
                 name: concat!("chain: subject distance -> actuator code/", $n),
                 units: 1,
                 base: Some(distance_to_code_base::<$t>),
@@ -452,10 +536,10 @@ macro_rules! per_type {
 }
 
 /// Items per number type.
-pub const PER_TYPE: usize = 14;
+pub const PER_TYPE: usize = 15;
 
 /// Items after the per-type ones: the frame floor and the `libm` baselines.
-const OTHERS: usize = 8;
+const OTHERS: usize = 9;
 
 /// Everything measured: the crate's routines in three number types, the frame
 /// floor, then the `libm` f32 baselines. The order is the flash probes' index.
@@ -511,6 +595,12 @@ pub const ITEMS: [Item; 3 * PER_TYPE + OTHERS] = {
             units: 1024,
             base: None,
             run: focus_metric_per_pixel,
+        },
+        Item {
+            name: "hand-written: position, T -> %Brix (cubic, offset, ICUMSA polynomial, bilinear table)/f32",
+            units: 1,
+            base: None,
+            run: hand_written_brix,
         },
     ];
     let mut out = [base[0]; 3 * PER_TYPE + OTHERS];
