@@ -259,6 +259,10 @@ fn conversion_setup_reading<S: Tabled>(
     let mut inst: Refractometer<S> = chains::refractometer::<S>().ok()?;
     let (f, t) = chain_input::<S>(i);
     let avg = inst.feed(f, t).ok()??;
+    // One reading before: the instrument's state at this temperature (the
+    // prism near it) is in place, as it is on every reading but the first
+    // after a degree of drift.
+    black_box(inst.read(&avg).ok());
     Some((inst, avg))
 }
 
