@@ -12,16 +12,22 @@ use embedded_optics::media::IndexReference;
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::Water;
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
-use embedded_optics::refractometer::compensation::{LinearCompensation, WaterCompensation};
+use embedded_optics::refractometer::compensation::{
+    LinearCompensation, SucroseCompensation, WaterCompensation,
+};
 use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
+use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Averaged, Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, HoneyWater, IndexScale, Salinity, SaltBrine,
     SucroseBrix,
 };
+use embedded_optics::refractometer::urea::UreaMass;
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
-use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use embedded_optics::refractometer::{
+    CompensationNote, SampleCompensation, TradeScale, WavelengthCorrection,
+};
 use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 
@@ -30,6 +36,7 @@ use embedded_optics::{Error, Scalar};
 pub struct SampleModel<S> {
     dispersion: Option<AbbeDispersion<S>>,
     linear: Option<LinearCompensation<S>>,
+    sucrose: Option<SucroseCompensation>,
     water: WaterCompensation<Water>,
 }
 
@@ -44,9 +51,17 @@ impl<S: Scalar> WavelengthCorrection<S> for SampleModel<S> {
 
 impl<S: Scalar> SampleCompensation<S> for SampleModel<S> {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
-        match &self.linear {
-            Some(l) => l.to_reference(nd, temperature_c),
-            None => self.water.to_reference(nd, temperature_c),
+        match (&self.linear, &self.sucrose) {
+            (Some(l), _) => l.to_reference(nd, temperature_c),
+            (None, Some(c)) => c.to_reference(nd, temperature_c),
+            (None, None) => self.water.to_reference(nd, temperature_c),
+        }
+    }
+    fn basis_at(&self, nd: S, temperature_c: S) -> Result<CompensationNote<S>, Error> {
+        match (&self.linear, &self.sucrose) {
+            (Some(l), _) => l.basis_at(nd, temperature_c),
+            (None, Some(c)) => c.basis_at(nd, temperature_c),
+            (None, None) => self.water.basis_at(nd, temperature_c),
         }
     }
 }
@@ -66,6 +81,10 @@ pub enum Scale {
     GlycolFreezingPoint,
     /// Battery-acid density, g/cm³.
     BatteryAcid,
+    /// AUS 32 urea content, % by mass.
+    Urea,
+    /// Methanol screen-wash freezing point, °C.
+    MethanolFreezingPoint,
     /// nD itself.
     Nd,
 }
@@ -79,6 +98,8 @@ impl Scale {
             Scale::Honey => &HoneyWater,
             Scale::GlycolFreezingPoint => &EthyleneGlycolFreezingPoint,
             Scale::BatteryAcid => &BatteryAcidDensity,
+            Scale::Urea => &UreaMass,
+            Scale::MethanolFreezingPoint => &ScreenWashFreezingPoint(Alcohol::Methanol),
             Scale::Nd => &IndexScale,
         }
     }
@@ -114,9 +135,11 @@ pub fn sample_model<S: Scalar>(sc: &Scenario) -> Result<SampleModel<S>, Error> {
         }),
         _ => None,
     };
+    let sucrose = (m.compensation == "sucrose").then(SucroseCompensation::juice_lab);
     Ok(SampleModel {
         dispersion,
         linear,
+        sucrose,
         water: WaterCompensation {
             water: Water::new(IndexReference::Air),
         },
@@ -132,6 +155,8 @@ pub fn scale(sc: &Scenario) -> Scale {
         "honey" => Scale::Honey,
         "glycol-freezing-point" => Scale::GlycolFreezingPoint,
         "battery-acid" => Scale::BatteryAcid,
+        "urea" => Scale::Urea,
+        "methanol-freezing-point" => Scale::MethanolFreezingPoint,
         _ => Scale::Nd,
     }
 }

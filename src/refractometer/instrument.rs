@@ -135,7 +135,9 @@ use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_bo
 use crate::refractometer::calibration::{self, Standard};
 use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
 use crate::refractometer::record::{CalibrationRecord, SlotChoice};
-use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use crate::refractometer::{
+    CompensationNote, SampleCompensation, TradeScale, WavelengthCorrection,
+};
 use crate::scalar::Scalar;
 use crate::scalar::split_floor;
 
@@ -207,8 +209,12 @@ pub struct Reading<S> {
     pub raw_index: S,
     /// Sample temperature, °C.
     pub temperature_c: S,
-    /// Standard uncertainty of `nd20` (first order, k = 1).
+    /// Standard uncertainty of `nd20` (first order, k = 1), the
+    /// compensation's own (`compensation.uncertainty`) included.
     pub uncertainty: S,
+    /// What the temperature compensation rested on (published table, model,
+    /// stated formula) and its standard uncertainty in nD at 20 °C.
+    pub compensation: CompensationNote<S>,
     /// `false` while readings still drift (sample warming or cooling).
     pub stable: bool,
     /// Boundary position and quality figures.
@@ -514,7 +520,13 @@ where
         }
         .mul(S::TWO)?;
         let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
-        let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
+        let compensation = self.compensation.basis_at(nd, t)?;
+        let uncertainty = root_sum_square([
+            term_px,
+            term_t,
+            self.u_calibration,
+            compensation.uncertainty,
+        ])?;
 
         let stable = self.settle(nd20, t)?;
         Ok(Reading {
@@ -525,6 +537,7 @@ where
             raw_index: raw,
             temperature_c: t,
             uncertainty,
+            compensation,
             stable,
             averaged: *avg,
         })
@@ -630,17 +643,19 @@ fn millidegrees<S: Scalar>(t: S) -> Result<i32, Error> {
         .ok_or(Error::Overflow)
 }
 
-/// `√(a² + b² + c²)` scaled by the largest term, so that tiny uncertainties keep
+/// `√(Σ tᵢ²)` scaled by the largest term, so that tiny uncertainties keep
 /// their digits in fixed point and large ones do not overflow.
-fn root_sum_square<S: Scalar>(a: S, b: S, c: S) -> Result<S, Error> {
-    let m = a.abs()?.max(b.abs()?).max(c.abs()?);
+fn root_sum_square<S: Scalar>(terms: [S; 4]) -> Result<S, Error> {
+    let mut m = S::ZERO;
+    for t in terms {
+        m = m.max(t.abs()?);
+    }
     if m == S::ZERO {
         return Ok(S::ZERO);
     }
-    let sum = a
-        .div(m)?
-        .square()?
-        .add(b.div(m)?.square()?)?
-        .add(c.div(m)?.square()?)?;
+    let mut sum = S::ZERO;
+    for t in terms {
+        sum = sum.add(t.div(m)?.square()?)?;
+    }
     m.mul(sum.sqrt()?)
 }

@@ -30,6 +30,43 @@ pub trait SampleCompensation<S: Scalar> {
     /// nD at 20 °C of a sample whose nD at `temperature_c` is `nd`. Outside the
     /// model's compensation range: an error, never an extrapolation.
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error>;
+
+    /// What [`SampleCompensation::to_reference`] rests on at this point, and
+    /// the standard uncertainty (nD at 20 °C, k = 1) it adds to a reading.
+    /// The default: a stated formula or coefficient (water's IAPWS index, a
+    /// user's dn/dT) whose own uncertainty is its supplier's, counted as zero
+    /// here.
+    fn basis_at(&self, nd: S, temperature_c: S) -> Result<CompensationNote<S>, Error> {
+        let _ = (nd, temperature_c);
+        Ok(CompensationNote {
+            basis: CompensationBasis::Stated,
+            uncertainty: S::ZERO,
+        })
+    }
+}
+
+/// Which kind of source a reading's temperature compensation came from.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum CompensationBasis {
+    /// A cell (or an interpolation between cells) of a published correction
+    /// table.
+    PublishedTable,
+    /// A model fitted to published data, outside any table's cells; it
+    /// carries a standard uncertainty.
+    Model,
+    /// A stated formula or coefficient (IAPWS water, a user's dn/dT).
+    Stated,
+}
+
+/// A compensation's basis and the standard uncertainty it adds, nD at 20 °C.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct CompensationNote<S> {
+    /// Where the compensation came from.
+    pub basis: CompensationBasis,
+    /// Its standard uncertainty, nD at 20 °C (k = 1).
+    pub uncertainty: S,
 }
 
 /// A trade scale read from nD at 20 °C, relative to air.
@@ -46,9 +83,13 @@ pub mod boundary;
 pub mod calibration;
 pub mod compensation;
 pub mod forward;
+pub mod freezing;
 pub mod geometry;
 pub mod instrument;
 pub mod record;
 pub mod scales;
+pub mod sucrose_temperature;
 pub mod table;
 pub mod thermistor;
+pub mod urea;
+pub mod wine;
