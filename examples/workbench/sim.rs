@@ -267,12 +267,24 @@ fn bisect(model: &SampleModel<f64>, nd20: f64, led_um: f64, t: f64) -> Result<f6
     let f = |n: f64| -> Result<f64, Error> {
         Ok(model.to_reference(model.to_nd(n, led_um)?, t)? - nd20)
     };
-    let (mut lo, mut hi) = (nd20 - 0.05, nd20 + 0.05);
-    if f(lo)? > 0.0 || f(hi)? < 0.0 {
+    // A bracket whose ends the model takes, each end as far out as it
+    // allows (the sucrose model's domain ends a few %Brix past the scale's;
+    // a user's dn/dT may need 0.05 nD).
+    const WIDTHS: [f64; 7] = [0.05, 0.02, 0.006, 0.003, 0.0015, 0.0005, 0.0002];
+    let end = |sign: f64| {
+        WIDTHS.into_iter().find_map(|w| {
+            let n = nd20 + sign * w;
+            match f(n) {
+                Ok(e) if e * sign >= 0.0 => Some(n),
+                _ => None,
+            }
+        })
+    };
+    let (Some(mut lo), Some(mut hi)) = (end(-1.0), end(1.0)) else {
         return Err(Error::OutOfRange(
             embedded_optics::Quantity::RefractiveIndex,
         ));
-    }
+    };
     for _ in 0..60 {
         let mid = 0.5 * (lo + hi);
         if f(mid)? < 0.0 {

@@ -106,10 +106,10 @@ where
     for k in 0..=5 {
         let shift = step.mul(S::from_i32(k)?)?;
         for n in [target.add(shift)?, target.sub(shift)?] {
-            if start.is_none() {
-                if let Ok(e) = chain(n).and_then(|v| v.sub(target)) {
-                    start = Some((n, e));
-                }
+            if start.is_none()
+                && let Ok(e) = chain(n).and_then(|v| v.sub(target))
+            {
+                start = Some((n, e));
             }
         }
     }

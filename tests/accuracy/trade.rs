@@ -120,6 +120,7 @@ case! {
 }
 
 /// OIV Table II densities the scale stores, kg/L at 10, 11, ..., 30 %.
+#[allow(clippy::approx_constant)] // table values, not constants
 const MUST_RHO: [f64; 21] = [
     1.0391, 1.0431, 1.0472, 1.0514, 1.0556, 1.0598, 1.0641, 1.0685, 1.0729, 1.0773, 1.0818, 1.0863,
     1.0908, 1.0954, 1.1001, 1.1047, 1.1095, 1.1142, 1.119, 1.1239, 1.1287,

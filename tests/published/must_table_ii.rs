@@ -3,7 +3,8 @@
 //! 20 °C and the density of natural grape must at 20 °C (kg/L), 10.0–30.0 %
 //! every 0.1 % (201 rows).
 
-/// (mass %, nD20, density kg/L).
+/// (mass %, nD20, density kg/L). Table values, not constants.
+#[allow(clippy::approx_constant)]
 pub const ROWS: [(f64, f64, f64); 201] = [
     (10.0, 1.34782, 1.0391),
     (10.1, 1.34798, 1.0395),
