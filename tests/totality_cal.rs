@@ -16,6 +16,7 @@ use embedded_optics::refractometer::scales::{
     sucrose_slope,
 };
 use embedded_optics::refractometer::sucrose_temperature::model_correction;
+use embedded_optics::refractometer::syrup::{GlucoseSyrupCompensation, GlucoseSyrupDryMatter};
 use embedded_optics::refractometer::table::{LinearTable, UniformCubicTable};
 use embedded_optics::refractometer::thermistor::{
     Beta, Divider, Placement, SteinhartHart, ThermistorModel, ln_integer,
@@ -130,6 +131,8 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     within(MustDensity.nd20_at(a), 1.3478, 1.3812);
     within(Oechsle.value_at(a), 39.0, 128.8);
     within(Oechsle.nd20_at(a), 1.3478, 1.3812);
+    within(GlucoseSyrupDryMatter.value_at(a), -0.01, 64.01);
+    within(GlucoseSyrupCompensation.to_reference(a, b), 1.3329, 1.4575);
     within(sucrose_slope(a), 1.4e-3, 2.8e-3);
     within(
         WaterCompensation { water: FlatWater }.to_reference(a, b),

@@ -147,7 +147,10 @@ fn model_against_syrup_rows_it_was_not_fitted_to() {
     // IAPWS water's own, against the change the compensation implies for
     // sucrose at the same content.
     let comp = SucroseCompensation::juice_lab();
-    let c30 = syrup::TEMPERATURES_C.iter().position(|&t| t == 30.0).unwrap();
+    let c30 = syrup::TEMPERATURES_C
+        .iter()
+        .position(|&t| t == 30.0)
+        .unwrap();
     // The one cell out of column order is the flagged misprint (not used).
     for (dm, n) in syrup::ROWS {
         let ordered = n.windows(2).all(|w| w[0] > w[1]);

@@ -140,3 +140,52 @@ fn must_density_against_every_row_of_table_ii() {
     let oe: I8F24 = Oechsle.value_at(I8F24::from_num(1.36384)).unwrap();
     assert!((oe.to_f64() - 81.8).abs() < 0.1);
 }
+
+#[path = "published/iso1743_glucose_syrup.rs"]
+mod syrup;
+
+#[test]
+fn glucose_syrup_against_the_iso_1743_rows() {
+    use embedded_optics::refractometer::SampleCompensation;
+    use embedded_optics::refractometer::syrup::{GlucoseSyrupCompensation, GlucoseSyrupDryMatter};
+    // ISO 1743 (GOST R 50546-93): rows 2, 6, ..., 62 % are not stored.
+    let mut worst_dm: f64 = 0.0;
+    let mut worst_comp: f64 = 0.0;
+    let mut n_comp = 0;
+    for (dm, n) in syrup::ROWS {
+        if dm > 64.0 {
+            continue;
+        }
+        if (dm as i32) % 4 == 2 {
+            let d = GlucoseSyrupDryMatter.value_at(n[0]).unwrap();
+            worst_dm = worst_dm.max((d - dm).abs());
+        }
+        // Each printed nD at 30, 45 and 60 °C compensates to the row's 20 °C nD.
+        for (k, &t) in syrup::TEMPERATURES_C.iter().enumerate().skip(1) {
+            if (dm, k) == syrup::MISPRINT {
+                continue;
+            }
+            let got = GlucoseSyrupCompensation.to_reference(n[k], t).unwrap();
+            worst_comp = worst_comp.max((got - n[0]).abs());
+            n_comp += 1;
+        }
+    }
+    println!(
+        "glucose syrup: dry matter worst {worst_dm:.3} % (rows not stored); compensation worst {worst_comp:.1e} nD over {n_comp} cells"
+    );
+    assert!(
+        worst_dm < 0.02 && worst_comp < 2e-5,
+        "{worst_dm} {worst_comp}"
+    );
+    // Outside 20–60 °C: out of range.
+    assert!(
+        GlucoseSyrupCompensation
+            .to_reference(1.38f64, 19.0)
+            .is_err()
+    );
+    assert!(
+        GlucoseSyrupCompensation
+            .to_reference(1.38f64, f64::NAN)
+            .is_err()
+    );
+}

@@ -89,6 +89,7 @@ pub mod instrument;
 pub mod record;
 pub mod scales;
 pub mod sucrose_temperature;
+pub mod syrup;
 pub mod table;
 pub mod thermistor;
 pub mod urea;

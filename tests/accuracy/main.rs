@@ -43,6 +43,7 @@ fn all_rows() -> Vec<Row> {
         row::<trade::UreaFromNd>(),
         row::<trade::MethanolFreezing>(),
         row::<trade::MustDensityFromNd>(),
+        row::<trade::SyrupDryMatterFromNd>(),
         row::<cal::SucroseCorrection>(),
         row::<trade::SucroseTemperatureModel>(),
         row::<cal::LinearSampleCompensation>(),

@@ -7,6 +7,7 @@ use crate::harness::{Budget, span};
 use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint};
 use embedded_optics::refractometer::sucrose_temperature::model_correction;
+use embedded_optics::refractometer::syrup::GlucoseSyrupDryMatter;
 use embedded_optics::refractometer::urea::UreaMass;
 use embedded_optics::refractometer::wine::MustDensity;
 
@@ -141,5 +142,28 @@ case! {
     },
     eval(x): {
     MustDensity.value_at(x[0])
+    }
+}
+
+/// ISO 1743 glucose-syrup nD at 20 °C the scale stores, 0, 4, ..., 64 %.
+const SYRUP_N20: [f64; 17] = [
+    1.33299, 1.33904, 1.34531, 1.35178, 1.35846, 1.36534, 1.37244, 1.37976, 1.38733, 1.39513,
+    1.40319, 1.41152, 1.42011, 1.429, 1.43818, 1.44767, 1.45748,
+];
+
+case! {
+    pub struct SyrupDryMatterFromNd;
+    name: "refractometer::syrup::GlucoseSyrupDryMatter::value_at",
+    unit: "% dry matter",
+    domain: "nD 1.33299–1.45748 (0–64 %)",
+    budget: Budget { f64: 1.0e-11, f32: 2.0e-4, i32f32: 3.0e-6, i8f24: 6.0e-4 },
+    inputs: {
+    span(1.33299, 1.45748, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(invert(|w| uniform_cubic(&SYRUP_N20, 0.0, 4.0, w), x[0], 0.0, 64.0))
+    },
+    eval(x): {
+    GlucoseSyrupDryMatter.value_at(x[0])
     }
 }
