@@ -17,6 +17,11 @@
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
 //! extrapolated beyond the published table.
 //!
+//! Scales of other trades have modules of their own:
+//! [`urea`](super::urea) (AUS 32), [`freezing`](super::freezing) (screen
+//! wash), [`wine`](super::wine) (must density, °Oechsle) and
+//! [`syrup`](super::syrup) (glucose-syrup dry matter).
+//!
 //! ```
 //! use embedded_optics::refractometer::{TradeScale, scales::SucroseBrix};
 //! use fixed::types::I8F24;
