@@ -1,8 +1,9 @@
 //! Closed loop with the REAL models: a dense-flint prism (`media::glass`),
 //! water from IAPWS R9-97 (`media::water`) as the zero standard, water-like
-//! sample dispersion, the OIV sucrose temperature correction where its table
-//! reaches (5–20 °C, 10–75 %Brix) and water's own dn/dT elsewhere, and the
-//! ICUMSA %Brix scale. The temperature reaches the chain through a thermistor
+//! sample dispersion, the full-range sucrose compensation (the juice-products
+//! table where it has cells, the sucrose temperature model elsewhere: 5–40 °C,
+//! 0–85 %Brix) and, for comparison, water's own dn/dT on dilute samples, and
+//! the ICUMSA %Brix scale. The temperature reaches the chain through a thermistor
 //! divider and its ADC code.
 //!
 //! Truth is defined once, consistently: a sample of `b` %Brix has nD20 from the
@@ -48,6 +49,11 @@ fn prism<S: Scalar>() -> Glass<S> {
 
 fn sucrose() -> SucroseCompensation {
     SucroseCompensation::oiv()
+}
+
+/// The compensation a handheld reads juices with over 5–40 °C.
+fn full_range() -> SucroseCompensation {
+    SucroseCompensation::juice_lab()
 }
 
 fn water_comp() -> WaterCompensation<Water> {
@@ -191,10 +197,9 @@ fn calibrated<S: Scalar>(third: bool) -> Chain<S, SucroseCompensation> {
 /// Which compensation a grid point is read with.
 #[derive(Clone, Copy, PartialEq, Debug)]
 enum Comp {
-    /// OIV Table I (5–20 °C, 10–75 %Brix).
+    /// The full-range sucrose compensation (5–40 °C, 0–85 %Brix).
     Sucrose,
-    /// Water's own dn/dT (dilute samples, and above 20 °C where the OIV rows
-    /// are missing).
+    /// Water's own dn/dT (dilute samples).
     Water,
 }
 
@@ -205,28 +210,22 @@ struct Point {
     frame: Vec<u16>,
 }
 
-/// The grid, rendered once. Sucrose: 11–60 %Brix at 5.5–19.5 °C (11–28 %Brix
-/// below 10 °C, where the OIV rows stop at 30 % and a cold sample reads up to
-/// 1 %Brix high); points keep off the table's edges so that a reading (or a
-/// thermistor) a hair outside is not refused. Water: 0–60 %Brix at
-/// 20–40 °C and 0–5 %Brix at 5–15 °C.
+/// The grid, rendered once. Sucrose: 0–60 %Brix (and 11) at 5–40 °C, on and
+/// off the tables' rows, through the published cells and the model. Water's
+/// dn/dT: 0–60 %Brix at 20–40 °C and 0–5 %Brix at 5–15 °C.
 fn grid() -> &'static Vec<Point> {
     static GRID: OnceLock<Vec<Point>> = OnceLock::new();
     GRID.get_or_init(|| {
         let mut points = Vec::new();
-        let sixty: Vec<f64> = [11.0]
+        let sixty: Vec<f64> = [0.0, 2.0, 5.0, 11.0]
             .into_iter()
-            .chain((3..=12).map(|k| 5.0 * k as f64))
+            .chain((2..=12).map(|k| 5.0 * k as f64))
             .collect();
-        for t in [5.5, 7.5, 10.5, 12.5, 15.0, 17.5, 19.5] {
+        for t in [
+            5.0, 5.5, 7.5, 10.5, 12.5, 15.0, 17.5, 19.5, 21.5, 22.5, 25.0, 27.5, 30.0, 35.0, 40.0,
+        ] {
             for &brix in &sixty {
-                if t < 10.0 && brix > 28.0 {
-                    continue;
-                }
                 points.push((brix, t, Comp::Sucrose));
-            }
-            if t < 10.0 {
-                points.push((28.0, t, Comp::Sucrose));
             }
         }
         for t in [5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0] {
@@ -242,7 +241,7 @@ fn grid() -> &'static Vec<Point> {
             .into_iter()
             .map(|(brix, t, comp)| {
                 let n_led = match comp {
-                    Comp::Sucrose => sucrose_at_led(brix, t, &sucrose()),
+                    Comp::Sucrose => sucrose_at_led(brix, t, &full_range()),
                     Comp::Water => sucrose_at_led(brix, t, &water_comp()),
                 };
                 Point {
@@ -268,7 +267,7 @@ struct Bias {
 /// Reads the grid in type `S` with the given correction; temperatures from
 /// the thermistor path when `thermistor`, else exact.
 fn bias<S: Scalar>(correction: Correction<S>, thermistor: bool, verbose: bool) -> Bias {
-    let mut with_sucrose = chain::<S, _>(sucrose());
+    let mut with_sucrose = chain::<S, _>(full_range());
     let mut with_water = chain::<S, _>(water_comp());
     with_sucrose.set_correction(correction);
     with_water.set_correction(correction);
@@ -725,5 +724,41 @@ fn noisy_water_reads_around_zero_brix() {
         assert!(off > 0 && off < n, "{name}: {off} of {n}");
         // `noise_at_snr_100`'s bound for 4-frame readings at SNR 100.
         assert!(rms < 5e-5, "{name}: {rms}");
+    }
+}
+
+#[test]
+fn the_reading_carries_the_compensation_basis_and_its_uncertainty() {
+    // A 20 %Brix juice at 15 °C (juice-products table cell) and at 30 and
+    // 40 °C (the model): the reading says which, and the model's standard
+    // uncertainty (0.0105 %Brix/K from 20 °C, in nD through the scale's slope)
+    // is inside the reading's.
+    use embedded_optics::refractometer::CompensationBasis;
+    let correction = calibrated::<f64>(false).correction();
+    for (t, basis) in [
+        (15.0, CompensationBasis::PublishedTable),
+        (30.0, CompensationBasis::Model),
+        (40.0, CompensationBasis::Model),
+    ] {
+        let mut inst = chain::<f64, _>(full_range());
+        inst.set_correction(correction);
+        let f = frame(sucrose_at_led(20.0, t, &full_range()), t);
+        let r = read(&mut inst, &f, sensed::<f64>(t)).unwrap();
+        assert_eq!(r.compensation.basis, basis, "{t}");
+        let model_u = 0.0105 * (t - 20.0).abs() * 1.7e-3;
+        if basis == CompensationBasis::Model {
+            assert!(
+                (r.compensation.uncertainty - model_u).abs() < 0.05 * model_u,
+                "{t}: {:?}",
+                r.compensation
+            );
+            assert!(r.uncertainty >= r.compensation.uncertainty, "{t}");
+        } else {
+            assert_eq!(r.compensation.uncertainty, 0.0);
+        }
+        println!(
+            "20 %Brix at {t} °C: {:?}, reading u {:.2e} nD",
+            r.compensation, r.uncertainty
+        );
     }
 }

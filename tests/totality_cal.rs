@@ -8,15 +8,21 @@ use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
 };
+use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint, ScreenWashMass};
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, choose_slots, crc32};
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
-    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, UserScale,
+    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, UserScale, apparent_brix,
+    sucrose_slope,
 };
+use embedded_optics::refractometer::sucrose_temperature::model_correction;
+use embedded_optics::refractometer::syrup::{GlucoseSyrupCompensation, GlucoseSyrupDryMatter};
 use embedded_optics::refractometer::table::{LinearTable, UniformCubicTable};
 use embedded_optics::refractometer::thermistor::{
     Beta, Divider, Placement, SteinhartHart, ThermistorModel, ln_integer,
 };
+use embedded_optics::refractometer::urea::UreaMass;
+use embedded_optics::refractometer::wine::{MustDensity, Oechsle};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
 use embedded_optics::{Error, Quantity, Scalar};
 use fixed::types::{I8F24, I32F32};
@@ -93,7 +99,41 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
 
     let sucrose = SucroseCompensation::oiv();
     within(sucrose.to_reference(a, b), 1.3329, 1.5041);
-    within(sucrose.brix_at_reference(a, b), 9.0, 76.0);
+    // The model continues the table over 5–40 °C and −2.5 to 87 %Brix read.
+    within(sucrose.brix_at_reference(a, b), -2.6, 89.0);
+    for comp in [SucroseCompensation::oiv(), SucroseCompensation::juice_lab()] {
+        within(comp.to_reference(a, b), 1.3327, 1.5041);
+        if let Ok(c) = comp.correction(b, a) {
+            for v in [c.correction, c.per_kelvin, c.per_brix, c.uncertainty] {
+                assert!(v.to_f64().is_finite());
+            }
+            assert!(c.correction.to_f64().abs() < 2.5 && c.uncertainty.to_f64() <= 0.2153);
+        }
+        if let Ok(n) = comp.basis_at(a, b) {
+            assert!(n.uncertainty.to_f64() >= 0.0 && n.uncertainty.to_f64() < 1e-3);
+        }
+    }
+    if let Ok(m) = model_correction(b, a) {
+        assert!(m.correction.to_f64().abs() < 2.5 && m.uncertainty.to_f64() <= 0.2153);
+    }
+    within(apparent_brix(a), -2.5, 87.0);
+    // Fleet depot and winery scales: values inside their published ranges.
+    within(UreaMass.value_at(a), -0.01, 44.01);
+    within(UreaMass.nd20_at(a), 1.3329, 1.4019);
+    let _ = UreaMass::in_specification(a);
+    for alcohol in [Alcohol::Methanol, Alcohol::Ethanol, Alcohol::Propan2ol] {
+        within(ScreenWashMass(alcohol).value_at(a), -0.01, 40.01);
+        within(ScreenWashMass(alcohol).nd20_at(a), 1.3329, 1.3584);
+        within(ScreenWashFreezingPoint(alcohol).value_at(a), -38.61, 0.01);
+        within(ScreenWashFreezingPoint(alcohol).nd20_at(a), 1.3329, 1.3584);
+    }
+    within(MustDensity.value_at(a), 1.039, 1.1288);
+    within(MustDensity.nd20_at(a), 1.3478, 1.3812);
+    within(Oechsle.value_at(a), 39.0, 128.8);
+    within(Oechsle.nd20_at(a), 1.3478, 1.3812);
+    within(GlucoseSyrupDryMatter.value_at(a), -0.01, 64.01);
+    within(GlucoseSyrupCompensation.to_reference(a, b), 1.3329, 1.4575);
+    within(sucrose_slope(a), 1.4e-3, 2.8e-3);
     within(
         WaterCompensation { water: FlatWater }.to_reference(a, b),
         1.0,

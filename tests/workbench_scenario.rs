@@ -7,6 +7,7 @@ mod scenario;
 
 const JUICE: &str = include_str!("../examples/scenarios/juice_line.toml");
 const AQUARIUM: &str = include_str!("../examples/scenarios/aquarium_salinity.toml");
+const FLEET: &str = include_str!("../examples/scenarios/fleet_depot_aus32.toml");
 
 fn error_of(text: &str) -> String {
     match scenario::parse(text, "test.toml") {
@@ -31,6 +32,11 @@ fn shipped_scenarios_parse() {
     assert_eq!(s.sample_model.scale, "brix");
     let s = scenario::parse(AQUARIUM, "aquarium").unwrap();
     assert_eq!(s.sample_model.scale, "salinity");
+    let s = scenario::parse(FLEET, "fleet").unwrap();
+    assert_eq!(s.sample_model.scale, "urea");
+    // The juice line compensates over its whole range with the sucrose model.
+    let s = scenario::parse(JUICE, "juice").unwrap();
+    assert_eq!(s.sample_model.compensation, "sucrose");
 }
 
 #[test]

@@ -110,7 +110,10 @@ pub struct SampleModelSpec {
     /// Sample Abbe number, for `dispersion = "abbe"`.
     #[serde(default)]
     pub abbe_number: Option<f64>,
-    /// `"water"` (water's own dn/dT) or `"linear"` (with `dn_dt_per_k`).
+    /// `"water"` (water's own dn/dT), `"linear"` (with `dn_dt_per_k`) or
+    /// `"sucrose"` (sucrose and juices over 5–40 °C: the juice-products
+    /// correction table where it has cells, the sucrose temperature model
+    /// elsewhere).
     pub compensation: String,
     /// Sample dn/dT per K, for `compensation = "linear"`.
     #[serde(default)]
@@ -118,18 +121,21 @@ pub struct SampleModelSpec {
     /// Temperatures the compensation holds for, °C: `[low, high]`.
     pub compensation_range_c: [f64; 2],
     /// `"brix"`, `"salinity"`, `"brine"`, `"honey"`, `"glycol-freezing-point"`,
-    /// `"battery-acid"` or `"nd"`.
+    /// `"battery-acid"`, `"urea"` (AUS 32), `"methanol-freezing-point"`
+    /// (screen wash) or `"nd"`.
     pub scale: String,
 }
 
 /// The trade scales a scenario can pick, as `sample_model.scale` spells them.
-pub const SCALE_NAMES: [&str; 7] = [
+pub const SCALE_NAMES: [&str; 9] = [
     "brix",
     "salinity",
     "brine",
     "honey",
     "glycol-freezing-point",
     "battery-acid",
+    "urea",
+    "methanol-freezing-point",
     "nd",
 ];
 
@@ -288,7 +294,7 @@ impl Scenario {
             }
         }
         match self.sample_model.compensation.as_str() {
-            "water" => {}
+            "water" | "sucrose" => {}
             "linear" => within(
                 "sample_model.dn_dt_per_k",
                 self.sample_model.dn_dt_per_k.unwrap_or(f64::NAN),
@@ -298,7 +304,7 @@ impl Scenario {
             other => {
                 return Err(bad(
                     "sample_model.compensation",
-                    &format!("\"{other}\" is not one of \"water\", \"linear\""),
+                    &format!("\"{other}\" is not one of \"water\", \"linear\", \"sucrose\""),
                 ));
             }
         }

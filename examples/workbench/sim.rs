@@ -12,16 +12,22 @@ use embedded_optics::media::IndexReference;
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::Water;
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
-use embedded_optics::refractometer::compensation::{LinearCompensation, WaterCompensation};
+use embedded_optics::refractometer::compensation::{
+    LinearCompensation, SucroseCompensation, WaterCompensation,
+};
 use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
+use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint};
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Averaged, Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, HoneyWater, IndexScale, Salinity, SaltBrine,
     SucroseBrix,
 };
+use embedded_optics::refractometer::urea::UreaMass;
 use embedded_optics::refractometer::wavelength::{AbbeDispersion, WaterLikeDispersion};
-use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use embedded_optics::refractometer::{
+    CompensationNote, SampleCompensation, TradeScale, WavelengthCorrection,
+};
 use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 
@@ -30,6 +36,7 @@ use embedded_optics::{Error, Scalar};
 pub struct SampleModel<S> {
     dispersion: Option<AbbeDispersion<S>>,
     linear: Option<LinearCompensation<S>>,
+    sucrose: Option<SucroseCompensation>,
     water: WaterCompensation<Water>,
 }
 
@@ -44,9 +51,17 @@ impl<S: Scalar> WavelengthCorrection<S> for SampleModel<S> {
 
 impl<S: Scalar> SampleCompensation<S> for SampleModel<S> {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
-        match &self.linear {
-            Some(l) => l.to_reference(nd, temperature_c),
-            None => self.water.to_reference(nd, temperature_c),
+        match (&self.linear, &self.sucrose) {
+            (Some(l), _) => l.to_reference(nd, temperature_c),
+            (None, Some(c)) => c.to_reference(nd, temperature_c),
+            (None, None) => self.water.to_reference(nd, temperature_c),
+        }
+    }
+    fn basis_at(&self, nd: S, temperature_c: S) -> Result<CompensationNote<S>, Error> {
+        match (&self.linear, &self.sucrose) {
+            (Some(l), _) => l.basis_at(nd, temperature_c),
+            (None, Some(c)) => c.basis_at(nd, temperature_c),
+            (None, None) => self.water.basis_at(nd, temperature_c),
         }
     }
 }
@@ -66,6 +81,10 @@ pub enum Scale {
     GlycolFreezingPoint,
     /// Battery-acid density, g/cm³.
     BatteryAcid,
+    /// AUS 32 urea content, % by mass.
+    Urea,
+    /// Methanol screen-wash freezing point, °C.
+    MethanolFreezingPoint,
     /// nD itself.
     Nd,
 }
@@ -79,6 +98,8 @@ impl Scale {
             Scale::Honey => &HoneyWater,
             Scale::GlycolFreezingPoint => &EthyleneGlycolFreezingPoint,
             Scale::BatteryAcid => &BatteryAcidDensity,
+            Scale::Urea => &UreaMass,
+            Scale::MethanolFreezingPoint => &ScreenWashFreezingPoint(Alcohol::Methanol),
             Scale::Nd => &IndexScale,
         }
     }
@@ -114,9 +135,11 @@ pub fn sample_model<S: Scalar>(sc: &Scenario) -> Result<SampleModel<S>, Error> {
         }),
         _ => None,
     };
+    let sucrose = (m.compensation == "sucrose").then(SucroseCompensation::juice_lab);
     Ok(SampleModel {
         dispersion,
         linear,
+        sucrose,
         water: WaterCompensation {
             water: Water::new(IndexReference::Air),
         },
@@ -132,6 +155,8 @@ pub fn scale(sc: &Scenario) -> Scale {
         "honey" => Scale::Honey,
         "glycol-freezing-point" => Scale::GlycolFreezingPoint,
         "battery-acid" => Scale::BatteryAcid,
+        "urea" => Scale::Urea,
+        "methanol-freezing-point" => Scale::MethanolFreezingPoint,
         _ => Scale::Nd,
     }
 }
@@ -242,12 +267,24 @@ fn bisect(model: &SampleModel<f64>, nd20: f64, led_um: f64, t: f64) -> Result<f6
     let f = |n: f64| -> Result<f64, Error> {
         Ok(model.to_reference(model.to_nd(n, led_um)?, t)? - nd20)
     };
-    let (mut lo, mut hi) = (nd20 - 0.05, nd20 + 0.05);
-    if f(lo)? > 0.0 || f(hi)? < 0.0 {
+    // A bracket whose ends the model takes, each end as far out as it
+    // allows (the sucrose model's domain ends a few %Brix past the scale's;
+    // a user's dn/dT may need 0.05 nD).
+    const WIDTHS: [f64; 7] = [0.05, 0.02, 0.006, 0.003, 0.0015, 0.0005, 0.0002];
+    let end = |sign: f64| {
+        WIDTHS.into_iter().find_map(|w| {
+            let n = nd20 + sign * w;
+            match f(n) {
+                Ok(e) if e * sign >= 0.0 => Some(n),
+                _ => None,
+            }
+        })
+    };
+    let (Some(mut lo), Some(mut hi)) = (end(-1.0), end(1.0)) else {
         return Err(Error::OutOfRange(
             embedded_optics::Quantity::RefractiveIndex,
         ));
-    }
+    };
     for _ in 0..60 {
         let mid = 0.5 * (lo + hi);
         if f(mid)? < 0.0 {

@@ -97,8 +97,26 @@ where
     let target = check_index(nd20)?;
     let chain =
         |n: S| compensation.to_reference(dispersion.to_nd(n, wavelength_um)?, temperature_c);
-    let mut n0 = target;
-    let mut e0 = chain(n0)?.sub(target)?;
+    // The first guess is the target itself; a sample whose reading at
+    // temperature lies far from its nD at 20 °C (water read at 5 °C is a
+    // whole %Brix off the scale's zero) may have no compensated value there,
+    // so guesses 1e-3 apart either side are tried next.
+    let step = crate::lit!(S, 1e-3);
+    let mut start = None;
+    for k in 0..=5 {
+        let shift = step.mul(S::from_i32(k)?)?;
+        for n in [target.add(shift)?, target.sub(shift)?] {
+            if start.is_none()
+                && let Ok(e) = chain(n).and_then(|v| v.sub(target))
+            {
+                start = Some((n, e));
+            }
+        }
+    }
+    let (mut n0, mut e0) = match start {
+        Some(s) => s,
+        None => (target, chain(target)?.sub(target)?),
+    };
     let mut n1 = n0.sub(e0)?;
     for _ in 0..6 {
         let e1 = chain(n1)?.sub(target)?;

@@ -1,9 +1,12 @@
 //! Sample and prism temperature compensation (ATC) to the 20 °C of the trade
 //! tables.
 //!
-//! - [`SucroseCompensation`]: a published correction table for sucrose
-//!   (%Brix to add, by temperature and sugar content): OIV-MA-AS2-02 Table I,
-//!   or a laboratory table for juices that also covers dilute samples.
+//! - [`SucroseCompensation`]: sucrose and %Brix-read juices, 5–40 °C and
+//!   0–85 %Brix, water included: a published correction table (%Brix to add,
+//!   by temperature and sugar content: OIV-MA-AS2-02 Table I, or a laboratory
+//!   table for juices that also covers dilute samples) where it has cells, the
+//!   [`sucrose_temperature`](super::sucrose_temperature) model elsewhere, with
+//!   the model's standard uncertainty and the basis of every correction.
 //! - [`WaterCompensation`]: water's own index change, from any [`Medium`]
 //!   (for example an IAPWS R9-97 water model).
 //! - [`LinearCompensation`]: a user's dn/dT for other samples.
@@ -14,10 +17,12 @@
 //! [`Quantity::ScaleValue`] for a sugar content outside the table): a firmware
 //! shows the reading as uncompensated, it never gets an extrapolated one.
 
-use super::TradeScale;
-use super::scales::SucroseBrix;
+use super::scales::{SucroseBrix, apparent_brix, sucrose_cell_slope, sucrose_slope};
+use super::sucrose_temperature::model_correction;
 use super::table::{Raw, div_round};
-use super::{Compensated, SampleCompensation, SampleDomain};
+use super::{
+    Compensated, CompensationBasis, CompensationNote, SampleCompensation, SampleDomain, TradeScale,
+};
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::media::Medium;
@@ -58,8 +63,9 @@ pub struct SucroseCorrectionTable {
 /// when this was written: between 17 °C and 20 °C the correction is
 /// interpolated to the 20 °C zero (within 0.007 %Brix of the 18 and 19 °C rows
 /// of [`JUICE_LAB_TABLE_10_TO_22_C`]), and above 20 °C [`SucroseCompensation::oiv`]
-/// reports [`Error::OutOfRange`]. A firmware that needs 20–30 °C supplies the
-/// full table through [`SucroseCompensation::new`].
+/// uses the model of [`sucrose_temperature`](super::sucrose_temperature). A
+/// firmware that needs the published 20–30 °C cells supplies the full table
+/// through [`SucroseCompensation::new`].
 pub const OIV_TABLE_I_5_TO_20_C: SucroseCorrectionTable = SucroseCorrectionTable {
     temperatures_c: &[5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 20],
     brix: &[10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 75],
@@ -350,39 +356,379 @@ impl SucroseCorrectionTable {
     }
 }
 
-/// Sucrose (and %Brix-read juices) compensation by a published correction
-/// table: the reading at temperature is taken as %Brix on the ICUMSA scale,
-/// corrected by the table, and turned back to nD at 20 °C.
+/// Sucrose (and %Brix-read juices) compensation, 5–40 °C and 0–85 %Brix: a
+/// published correction table where it has cells, the
+/// [`sucrose_temperature`](super::sucrose_temperature) model elsewhere.
+///
+/// It works in the sample's own domain: the reading at temperature is taken as
+/// %Brix on the 20 °C ICUMSA scale continued past its ends
+/// ([`apparent_brix`]: water at 30 °C reads −0.74 %Brix), corrected, and
+/// turned back to nD at 20 °C. So water and dilute samples read warm
+/// compensate as sugar solutions do.
+///
+/// Outside the table's cells the model's correction is joined to the table's
+/// nearest cell: the difference there is carried and fades out linearly over
+/// [`JOIN_FADE_C`] kelvins and [`JOIN_FADE_BRIX`] %Brix, so that the
+/// correction has no step at the table's edge. Such points are
+/// [`CompensationBasis::Model`] with the model's uncertainty.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SucroseCompensation {
     table: SucroseCorrectionTable,
 }
 
+/// Kelvins over which the table-minus-model difference at the table's edge
+/// fades out.
+pub const JOIN_FADE_C: f64 = 5.0;
+/// %Brix over which the same difference fades out along the sugar content.
+pub const JOIN_FADE_BRIX: f64 = 5.0;
+
+/// A sucrose temperature correction with what it rests on: the correction in
+/// %Brix for a reading taken at a temperature, its partial derivatives (for
+/// analytic sensitivities), its standard uncertainty and its basis.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SucroseCorrection<S> {
+    /// %Brix to add to the reading to get %Brix at 20 °C.
+    pub correction: S,
+    /// ∂correction/∂T, %Brix per K.
+    pub per_kelvin: S,
+    /// ∂correction/∂B (B: %Brix read at temperature).
+    pub per_brix: S,
+    /// Standard uncertainty of `correction`, %Brix (k = 1); zero on a
+    /// published table's cells (their rounding, ±0.005 %Brix, is the trade's
+    /// definition).
+    pub uncertainty: S,
+    /// Table or model.
+    pub basis: CompensationBasis,
+}
+
+/// `max(0, 1 − |d|/width)` and its derivative in `d`.
+fn fade<S: Scalar>(d: S, width: S) -> Result<(S, S), Error> {
+    let w = S::ONE.sub(d.abs()?.div(width)?)?;
+    if w <= S::ZERO {
+        return Ok((S::ZERO, S::ZERO));
+    }
+    let slope = S::ONE.div(width)?;
+    // At the anchor itself the anchor moves with the point: no slope.
+    Ok((
+        w,
+        match d {
+            d if d > S::ZERO => S::ZERO.sub(slope)?,
+            d if d < S::ZERO => slope,
+            _ => S::ZERO,
+        },
+    ))
+}
+
+/// Slope of `f` across `[lo, hi]` (a chord between grid lines).
+fn chord<S: Scalar>(lo: Result<S, Error>, hi: Result<S, Error>, step: S) -> Result<S, Error> {
+    match (lo, hi) {
+        (Ok(a), Ok(b)) => b.sub(a)?.div(step),
+        _ => Ok(S::ZERO),
+    }
+}
+
+impl SucroseCorrectionTable {
+    /// The correction and its two slopes (bilinear: exact chords of the cell
+    /// the point lies in; on a grid line, the cell above, or the one below
+    /// where the table ends there).
+    fn with_slopes<S: Scalar>(&self, t: S, b: S) -> Result<(S, S, S), Error> {
+        let c = self.correction(t, b)?;
+        let slope_along = |axis: &[i32], v: S, at: &dyn Fn(S) -> Result<S, Error>| {
+            let Some((i, _)) = bracket(axis, v)? else {
+                return Ok(S::ZERO);
+            };
+            let cell = |k: usize| axis.get(k).map(|&a| S::from_i32(a)).transpose();
+            let (Some(lo), Some(hi)) = (cell(i)?, cell(i + 1)?) else {
+                return Ok(S::ZERO);
+            };
+            match (at(lo), at(hi)) {
+                (Ok(a), Ok(z)) => z.sub(a)?.div(hi.sub(lo)?),
+                // The table ends at `lo` here: the cell below.
+                (Ok(a), Err(_)) => match cell(i.wrapping_sub(1))? {
+                    Some(below) => chord(at(below), Ok(a), lo.sub(below)?),
+                    None => Ok(S::ZERO),
+                },
+                _ => Ok(S::ZERO),
+            }
+        };
+        let per_t = slope_along(self.temperatures_c, t, &|tt| self.correction(tt, b))?;
+        let per_b = slope_along(self.brix, b, &|bb| self.correction(t, bb))?;
+        Ok((c, per_t, per_b))
+    }
+
+    /// Where to join the model to the table for a point `(t, b)` the table
+    /// has no cell for. Along temperature, with the content clamped to the
+    /// columns (`ba`): the nearest rows below and above `t` that have the
+    /// cells at `ba`. Along the content at `t`: the last column the rows
+    /// around `t` reach, where `b` lies beyond it (a ragged row's end).
+    fn anchors<S: Scalar>(&self, t: S, b: S) -> Result<Option<Anchors<S>>, Error> {
+        let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
+            return Ok(None);
+        };
+        let ba = b.max(S::from_i32(first)?).min(S::from_i32(last)?);
+        let Some((c, f)) = bracket(self.brix, ba)? else {
+            return Ok(None);
+        };
+        // The last column index the interpolation at `ba` reads.
+        let needed = if f == S::ZERO { c } else { c + 1 };
+        let (mut below, mut above): (Option<S>, Option<S>) = (None, None);
+        if self.correction(t, ba).is_ok() {
+            (below, above) = (Some(t), Some(t));
+        } else {
+            for (row, &temp) in self.corrections.iter().zip(self.temperatures_c) {
+                if row.len() <= needed {
+                    continue;
+                }
+                let tr = S::from_i32(temp)?;
+                if tr <= t && below.is_none_or(|x| tr > x) {
+                    below = Some(tr);
+                }
+                if tr >= t && above.is_none_or(|x| tr < x) {
+                    above = Some(tr);
+                }
+            }
+        }
+        // The columns both rows around `t` reach.
+        let top = match bracket(self.temperatures_c, t)? {
+            Some((r, fr)) => {
+                let len = |k: usize| self.corrections.get(k).map_or(0, |row| row.len());
+                let reach = if fr == S::ZERO {
+                    len(r)
+                } else {
+                    len(r).min(len(r + 1))
+                };
+                match reach.checked_sub(1).and_then(|k| self.brix.get(k)) {
+                    Some(&top) if b > S::from_i32(top)? => Some(S::from_i32(top)?),
+                    _ => None,
+                }
+            }
+            None => None,
+        };
+        Ok(Some(Anchors {
+            ba,
+            below,
+            above,
+            top,
+        }))
+    }
+}
+
+/// See [`SucroseCorrectionTable::anchors`].
+struct Anchors<S> {
+    ba: S,
+    below: Option<S>,
+    above: Option<S>,
+    top: Option<S>,
+}
+
+/// A join of the model to the table: the table-minus-model offset there, its
+/// slopes where the anchor moves with the point, and the weight it is given.
+struct Join<S> {
+    offset: S,
+    offset_t: S,
+    offset_b: S,
+    w_t: S,
+    dw_t: S,
+    w_b: S,
+    dw_b: S,
+}
+
 impl SucroseCompensation {
-    /// Compensation by OIV-MA-AS2-02 Table I, 5–20 °C and 10–75 %Brix where
-    /// the table has entries (see [`OIV_TABLE_I_5_TO_20_C`]).
+    /// OIV-MA-AS2-02 Table I where it has cells (5–20 °C, 10–75 %Brix, see
+    /// [`OIV_TABLE_I_5_TO_20_C`]), the model elsewhere in 5–40 °C.
     pub const fn oiv() -> Self {
         Self {
             table: OIV_TABLE_I_5_TO_20_C,
         }
     }
 
-    /// Compensation by the laboratory table for juices
-    /// ([`JUICE_LAB_TABLE_10_TO_22_C`]): 0–85 %Brix at 10–21 °C, 0–25 %Brix
-    /// to 22 °C. The choice for dilute samples (under 10 %Brix), which the OIV
-    /// table does not cover and for which water's own dn/dT is not close
-    /// enough (tests/world_cal.rs measures it).
+    /// The laboratory table for juices ([`JUICE_LAB_TABLE_10_TO_22_C`]) where
+    /// it has cells (0–85 %Brix at 10–21 °C, 0–25 %Brix to 22 °C), the model
+    /// elsewhere in 5–40 °C. The choice for dilute samples (under 10 %Brix),
+    /// which the OIV table does not cover and for which water's own dn/dT is
+    /// not close enough (tests/world_cal.rs measures it), and the one whose
+    /// table reaches above 20 °C.
     pub const fn juice_lab() -> Self {
         Self {
             table: JUICE_LAB_TABLE_10_TO_22_C,
         }
     }
 
-    /// Compensation by a correction table of the caller's (a fuller edition of
-    /// the OIV or ICUMSA table).
+    /// A correction table of the caller's (a fuller edition of the OIV or
+    /// ICUMSA table), with the model where it has no cells.
     pub const fn new(table: SucroseCorrectionTable) -> Self {
         Self { table }
+    }
+
+    /// The correction for a reading of `brix` (%Brix on the 20 °C scale, as
+    /// [`apparent_brix`] gives it) taken at `temperature_c`, with its slopes,
+    /// uncertainty and basis.
+    ///
+    /// Range: wherever the table has cells, and 5–40 °C with
+    /// [`APPARENT_BRIX_MIN`](super::scales::APPARENT_BRIX_MIN) to
+    /// [`APPARENT_BRIX_MAX`](super::scales::APPARENT_BRIX_MAX) %Brix through
+    /// the model.
+    ///
+    /// ```
+    /// use embedded_optics::refractometer::CompensationBasis;
+    /// use embedded_optics::refractometer::compensation::SucroseCompensation;
+    /// // A juice read at 25 °C: no table has the cell, the model does.
+    /// let c = SucroseCompensation::juice_lab().correction(25.0f64, 12.0).unwrap();
+    /// assert_eq!(c.basis, CompensationBasis::Model);
+    /// assert!(c.correction > 0.3 && c.correction < 0.4 && c.uncertainty > 0.05);
+    /// ```
+    pub fn correction<S: Scalar>(
+        &self,
+        temperature_c: S,
+        brix: S,
+    ) -> Result<SucroseCorrection<S>, Error> {
+        if !temperature_c.is_finite() {
+            return Err(Error::NotFinite(Quantity::Temperature));
+        }
+        if !brix.is_finite() {
+            return Err(Error::NotFinite(Quantity::ScaleValue));
+        }
+        if let Ok((correction, per_kelvin, per_brix)) = self.table.with_slopes(temperature_c, brix)
+        {
+            return Ok(SucroseCorrection {
+                correction,
+                per_kelvin,
+                per_brix,
+                uncertainty: S::ZERO,
+                basis: CompensationBasis::PublishedTable,
+            });
+        }
+        let m = model_correction(temperature_c, brix)?;
+        let mut out = SucroseCorrection {
+            correction: m.correction,
+            per_kelvin: m.per_kelvin,
+            per_brix: m.per_brix,
+            uncertainty: m.uncertainty,
+            basis: CompensationBasis::Model,
+        };
+        let Some(anchors) = self.table.anchors(temperature_c, brix)? else {
+            return Ok(out);
+        };
+        let (value, per_t, per_b) = self.join(temperature_c, brix, &anchors)?;
+        out.correction = out.correction.add(value)?;
+        out.per_kelvin = out.per_kelvin.add(per_t)?;
+        out.per_brix = out.per_brix.add(per_b)?;
+        Ok(out)
+    }
+
+    /// Table minus model at a table point, with the two slopes; `None` where
+    /// either is missing (a row outside the model's 5–40 °C).
+    fn offset_at<S: Scalar>(&self, t: S, b: S) -> Result<Option<(S, S, S)>, Error> {
+        let (Ok((tab, tab_t, tab_b)), Ok(m)) =
+            (self.table.with_slopes(t, b), model_correction(t, b))
+        else {
+            return Ok(None);
+        };
+        Ok(Some((
+            tab.sub(m.correction)?,
+            tab_t.sub(m.per_kelvin)?,
+            tab_b.sub(m.per_brix)?,
+        )))
+    }
+
+    /// The joins' weighted offset with its slopes in T and B: along
+    /// temperature (interpolated between the rows below and above, or fading
+    /// from the one there is) and along the content from a ragged row's end.
+    fn join<S: Scalar>(&self, t: S, b: S, a: &Anchors<S>) -> Result<(S, S, S), Error> {
+        let fade_c = lit!(S, JOIN_FADE_C);
+        let fade_b = lit!(S, JOIN_FADE_BRIX);
+        let (w_b, dw_b) = fade(b.sub(a.ba)?, fade_b)?;
+        // The offset follows the content only where `ba` is `b` itself.
+        let follows = a.ba == b;
+        let mut along_t: Option<Join<S>> = None;
+        let lo = match a.below {
+            Some(x) => self.offset_at(x, a.ba)?.map(|o| (x, o)),
+            None => None,
+        };
+        let hi = match a.above {
+            Some(x) => self.offset_at(x, a.ba)?.map(|o| (x, o)),
+            None => None,
+        };
+        match (lo, hi) {
+            (Some((x0, o0)), Some((x1, o1))) => {
+                let (offset, offset_t, offset_b) = if x1 > x0 {
+                    let f = t.sub(x0)?.div(x1.sub(x0)?)?;
+                    let rise = o1.0.sub(o0.0)?;
+                    let ob = o0.2.add(o1.2.sub(o0.2)?.mul(f)?)?;
+                    (o0.0.add(rise.mul(f)?)?, rise.div(x1.sub(x0)?)?, ob)
+                } else {
+                    o0
+                };
+                along_t = Some(Join {
+                    offset,
+                    offset_t,
+                    offset_b: if follows { offset_b } else { S::ZERO },
+                    w_t: S::ONE,
+                    dw_t: S::ZERO,
+                    w_b,
+                    dw_b,
+                });
+            }
+            (Some((x, o)), None) | (None, Some((x, o))) => {
+                let (w_t, dw_t) = fade(t.sub(x)?, fade_c)?;
+                along_t = Some(Join {
+                    offset: o.0,
+                    offset_t: S::ZERO,
+                    offset_b: if follows { o.2 } else { S::ZERO },
+                    w_t,
+                    dw_t,
+                    w_b,
+                    dw_b,
+                });
+            }
+            (None, None) => {}
+        }
+        let along_b = match a.top {
+            Some(top) => match self.offset_at(t, top)? {
+                Some(o) => {
+                    let (w, dw) = fade(b.sub(top)?, fade_b)?;
+                    Some(Join {
+                        offset: o.0,
+                        offset_t: o.1,
+                        offset_b: S::ZERO,
+                        w_t: S::ONE,
+                        dw_t: S::ZERO,
+                        w_b: w,
+                        dw_b: dw,
+                    })
+                }
+                None => None,
+            },
+            None => None,
+        };
+        // Each join's weighted offset and its slopes.
+        let terms = |j: &Option<Join<S>>| -> Result<(S, S, S), Error> {
+            let Some(j) = j else {
+                return Ok((S::ZERO, S::ZERO, S::ZERO));
+            };
+            let w = j.w_t.mul(j.w_b)?;
+            Ok((
+                w.mul(j.offset)?,
+                j.dw_t.mul(j.w_b)?.mul(j.offset)?.add(w.mul(j.offset_t)?)?,
+                j.w_t.mul(j.dw_b)?.mul(j.offset)?.add(w.mul(j.offset_b)?)?,
+            ))
+        };
+        // The ragged row's end (at `t` itself) first, the rows along
+        // temperature for the rest of the weight: `wB·oB + (1 − wB)·T`.
+        let (tv, tt, tb) = terms(&along_t)?;
+        let Some(jb) = along_b else {
+            return Ok((tv, tt, tb));
+        };
+        let (w_b, dw_b) = (jb.w_b, jb.dw_b);
+        let (bv, bt, bb) = terms(&Some(jb))?;
+        let rest = S::ONE.sub(w_b)?;
+        Ok((
+            bv.add(rest.mul(tv)?)?,
+            bt.add(rest.mul(tt)?)?,
+            bb.add(rest.mul(tb)?)?.sub(dw_b.mul(tv)?)?,
+        ))
     }
 
     /// %Brix at 20 °C from %Brix read at `temperature_c`.
@@ -394,59 +740,67 @@ impl SucroseCompensation {
     /// assert!((b - 14.67).abs() < 1e-9);
     /// ```
     pub fn brix_at_reference<S: Scalar>(&self, brix: S, temperature_c: S) -> Result<S, Error> {
-        brix.add(self.table.correction(temperature_c, brix)?)
+        brix.add(self.correction(temperature_c, brix)?.correction)
+    }
+
+    /// %Brix read at temperature and the correction for `nd` at `temperature_c`.
+    fn read<S: Scalar>(&self, nd: S, temperature_c: S) -> Result<(S, SucroseCorrection<S>), Error> {
+        let brix_read = apparent_brix(nd)?;
+        Ok((brix_read, self.correction(temperature_c, brix_read)?))
     }
 }
 
 impl<S: Scalar> SampleCompensation<S> for SucroseCompensation {
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error> {
-        let brix_read = SucroseBrix.value_at(nd)?;
-        let brix20 = self.brix_at_reference(brix_read, temperature_c)?;
-        SucroseBrix.nd20_at(brix20)
+        let (brix_read, c) = self.read(nd, temperature_c)?;
+        SucroseBrix.nd20_at(brix_read.add(c.correction)?)
+    }
+
+    /// The basis of the correction, and its uncertainty carried to nD by the
+    /// scale's slope at the corrected %Brix.
+    fn basis_at(&self, nd: S, temperature_c: S) -> Result<CompensationNote<S>, Error> {
+        let (brix_read, c) = self.read(nd, temperature_c)?;
+        let uncertainty = if c.uncertainty == S::ZERO {
+            S::ZERO
+        } else {
+            c.uncertainty
+                .mul(sucrose_slope(brix_read.add(c.correction)?)?)?
+        };
+        Ok(CompensationNote {
+            basis: c.basis,
+            uncertainty,
+        })
     }
 
     /// One pass in the %Brix domain: one table inversion (nD → %Brix at T),
-    /// the correction, one forward reading (→ nD at 20 °C); %Brix at 20 °C is
-    /// kept for a %Brix scale.
+    /// the correction with its slopes and basis, one forward reading (→ nD at
+    /// 20 °C); %Brix at 20 °C is kept for a %Brix scale.
     ///
-    /// The correction is read at the whole degrees either side of the
-    /// temperature and interpolated (the tables are linear in T between whole
-    /// degrees, so this is their value, within rounding), which gives ∂c/∂T
-    /// exactly. ∂nD20/∂T = (dnD/d%Brix at 20 °C) · ∂c/∂T, with the sucrose
-    /// table's chord slope over its 5 %Brix cell (within 2 % of the tangent). ∂nD20/∂nD is taken as 1: the correction moves a
-    /// reading by at most 1 %Brix, over which the sucrose curve's slope
-    /// changes by under 0.8 %, and ∂c/∂%Brix is below 0.003 in both tables.
+    /// ∂nD20/∂T = (dnD/d%Brix at 20 °C) · ∂c/∂T and the correction's own
+    /// uncertainty carried to nD the same way, with the sucrose table's chord
+    /// slope over its 5 %Brix cell (within 2 % of the tangent, no table
+    /// reading). ∂nD20/∂nD = 1 + ∂c/∂B: the ratio of the sucrose curve's
+    /// slopes at %Brix read and at 20 °C is left out, under 0.8 % for the
+    /// at most 1.5 %Brix a correction moves a reading at 5–40 °C.
     fn compensate(&self, nd: S, temperature_c: S) -> Result<Compensated<S>, Error> {
-        let brix_read = SucroseBrix.value_at(nd)?;
-        // The tables are linear in T between whole degrees: the correction at
-        // the degrees either side gives the value and its exact slope in T.
-        let whole = temperature_c.round_to_i32()?;
-        let whole = if S::from_i32(whole)? > temperature_c {
-            whole - 1
-        } else {
-            whole
-        };
-        let below = S::from_i32(whole)?;
-        let (at, per_kelvin_brix) = match (
-            self.table.correction(below, brix_read),
-            self.table.correction(below.add(S::ONE)?, brix_read),
-        ) {
-            (Ok(lo), Ok(hi)) => (lo, hi.sub(lo)?),
-            // `temperature_c` on the top row: the degree below gives the slope.
-            (Ok(lo), Err(e)) if below == temperature_c => {
-                let under = self.table.correction(below.sub(S::ONE)?, brix_read);
-                (lo, lo.sub(under.map_err(|_| e)?)?)
-            }
-            (Err(e), _) | (_, Err(e)) => return Err(e),
-        };
-        let c = at.add(temperature_c.sub(below)?.mul(per_kelvin_brix)?)?;
-        let brix20 = brix_read.add(c)?;
+        let (brix_read, c) = self.read(nd, temperature_c)?;
+        let brix20 = brix_read.add(c.correction)?;
         let nd20 = SucroseBrix.nd20_at(brix20)?;
+        let slope = sucrose_cell_slope(brix20)?;
+        let uncertainty = if c.uncertainty == S::ZERO {
+            S::ZERO
+        } else {
+            c.uncertainty.mul(slope)?
+        };
         Ok(Compensated {
             nd20,
-            per_nd: S::ONE,
-            per_kelvin: per_kelvin_brix.mul(super::scales::sucrose_slope(brix20)?)?,
+            per_nd: S::ONE.add(c.per_brix)?,
+            per_kelvin: c.per_kelvin.mul(slope)?,
             in_domain: Some((SampleDomain::SucroseBrix, brix20)),
+            note: CompensationNote {
+                basis: c.basis,
+                uncertainty,
+            },
         })
     }
 }

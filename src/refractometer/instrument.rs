@@ -143,7 +143,9 @@ use crate::refractometer::geometry::{
     Correction, Geometry, GeometryDescription, IndexAtPosition, check_described,
 };
 use crate::refractometer::record::{CalibrationRecord, SlotChoice};
-use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
+use crate::refractometer::{
+    CompensationNote, SampleCompensation, TradeScale, WavelengthCorrection,
+};
 use crate::scalar::Scalar;
 use crate::scalar::split_floor;
 
@@ -215,8 +217,12 @@ pub struct Reading<S> {
     pub raw_index: S,
     /// Sample temperature, °C.
     pub temperature_c: S,
-    /// Standard uncertainty of `nd20` (first order, k = 1).
+    /// Standard uncertainty of `nd20` (first order, k = 1), the
+    /// compensation's own (`compensation.uncertainty`) included.
     pub uncertainty: S,
+    /// What the temperature compensation rested on (published table, model,
+    /// stated formula) and its standard uncertainty in nD at 20 °C.
+    pub compensation: CompensationNote<S>,
     /// `false` while readings still drift (sample warming or cooling).
     pub stable: bool,
     /// Boundary position and quality figures.
@@ -568,7 +574,13 @@ where
             .mul(prism_per_kelvin)?
             .add(compensated.per_kelvin)?;
         let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
-        let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
+        let compensation = compensated.note;
+        let uncertainty = root_sum_square([
+            term_px,
+            term_t,
+            self.u_calibration,
+            compensation.uncertainty,
+        ])?;
 
         let stable = self.settle(nd20, t)?;
         Ok(Reading {
@@ -579,6 +591,7 @@ where
             raw_index: raw,
             temperature_c: t,
             uncertainty,
+            compensation,
             stable,
             averaged: *avg,
         })
@@ -684,32 +697,32 @@ fn millidegrees<S: Scalar>(t: S) -> Result<i32, Error> {
         .ok_or(Error::Overflow)
 }
 
-/// `√(a² + b² + c²)` scaled by the largest term, so that tiny uncertainties keep
+/// `√(Σ tᵢ²)` scaled by the largest term, so that tiny uncertainties keep
 /// their digits in fixed point and large ones do not overflow.
-fn root_sum_square<S: Scalar>(a: S, b: S, c: S) -> Result<S, Error> {
-    let m = a.abs()?.max(b.abs()?).max(c.abs()?);
+fn root_sum_square<S: Scalar>(terms: [S; 4]) -> Result<S, Error> {
+    let mut m = S::ZERO;
+    for t in terms {
+        m = m.max(t.abs()?);
+    }
     if m == S::ZERO {
         return Ok(S::ZERO);
     }
-    // The usual case, terms from 1e-5 to 0.01 nD: scaled by 2^10 (exact, and
-    // a multiplication), the squares stay inside I8F24 (≤ 105) and keep the
-    // largest one's digits; no division.
-    if m >= crate::lit!(S, 1e-5) && m <= crate::lit!(S, 0.01) {
+    // The usual case, terms from 1e-5 to 5e-3 nD: scaled by 2^10 (exact, and
+    // a multiplication), the four squares add up to at most 4 · 5.12² ≈ 105,
+    // inside I8F24, and keep the largest one's digits; no division.
+    let mut sum = S::ZERO;
+    if m >= crate::lit!(S, 1e-5) && m <= crate::lit!(S, 5e-3) {
         // ×32 twice: 1024 itself does not fit I8F24.
-        let up = |x: S| x.mul(crate::lit!(S, 32.0))?.mul(crate::lit!(S, 32.0));
-        let sum = up(a)?
-            .square()?
-            .add(up(b)?.square()?)?
-            .add(up(c)?.square()?)?;
-        let down = crate::lit!(S, 1.0 / 32.0);
+        let (up, down) = (crate::lit!(S, 32.0), crate::lit!(S, 1.0 / 32.0));
+        for t in terms {
+            sum = sum.add(t.mul(up)?.mul(up)?.square()?)?;
+        }
         return sum.sqrt()?.mul(down)?.mul(down);
     }
     // Divisions, not a reciprocal: 1/m of an uncertainty in nD (1e-5) does
     // not fit I8F24.
-    let sum = a
-        .div(m)?
-        .square()?
-        .add(b.div(m)?.square()?)?
-        .add(c.div(m)?.square()?)?;
+    for t in terms {
+        sum = sum.add(t.div(m)?.square()?)?;
+    }
     m.mul(sum.sqrt()?)
 }

@@ -70,6 +70,20 @@ pub trait SampleCompensation<S: Scalar> {
             per_nd,
             per_kelvin,
             in_domain: None,
+            note: self.basis_at(nd, temperature_c)?,
+        })
+    }
+
+    /// What [`SampleCompensation::to_reference`] rests on at this point, and
+    /// the standard uncertainty (nD at 20 °C, k = 1) it adds to a reading.
+    /// The default: a stated formula or coefficient (water's IAPWS index, a
+    /// user's dn/dT) whose own uncertainty is its supplier's, counted as zero
+    /// here.
+    fn basis_at(&self, nd: S, temperature_c: S) -> Result<CompensationNote<S>, Error> {
+        let _ = (nd, temperature_c);
+        Ok(CompensationNote {
+            basis: CompensationBasis::Stated,
+            uncertainty: S::ZERO,
         })
     }
 }
@@ -97,6 +111,32 @@ pub struct Compensated<S> {
     pub per_kelvin: S,
     /// The value at 20 °C in the model's domain, if it has one.
     pub in_domain: Option<(SampleDomain, S)>,
+    /// What the compensation rested on, and the uncertainty it adds.
+    pub note: CompensationNote<S>,
+}
+
+/// Which kind of source a reading's temperature compensation came from.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum CompensationBasis {
+    /// A cell (or an interpolation between cells) of a published correction
+    /// table.
+    PublishedTable,
+    /// A model fitted to published data, outside any table's cells; it
+    /// carries a standard uncertainty.
+    Model,
+    /// A stated formula or coefficient (IAPWS water, a user's dn/dT).
+    Stated,
+}
+
+/// A compensation's basis and the standard uncertainty it adds, nD at 20 °C.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct CompensationNote<S> {
+    /// Where the compensation came from.
+    pub basis: CompensationBasis,
+    /// Its standard uncertainty, nD at 20 °C (k = 1).
+    pub uncertainty: S,
 }
 
 /// A trade scale read from nD at 20 °C, relative to air.
@@ -123,9 +163,14 @@ pub mod boundary;
 pub mod calibration;
 pub mod compensation;
 pub mod forward;
+pub mod freezing;
 pub mod geometry;
 pub mod instrument;
 pub mod record;
 pub mod scales;
+pub mod sucrose_temperature;
+pub mod syrup;
 pub mod table;
 pub mod thermistor;
+pub mod urea;
+pub mod wine;

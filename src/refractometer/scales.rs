@@ -17,6 +17,11 @@
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
 //! extrapolated beyond the published table.
 //!
+//! Scales of other trades have modules of their own:
+//! [`urea`](super::urea) (AUS 32), [`freezing`](super::freezing) (screen
+//! wash), [`wine`](super::wine) (must density, °Oechsle) and
+//! [`syrup`](super::syrup) (glucose-syrup dry matter).
+//!
 //! ```
 //! use embedded_optics::refractometer::{TradeScale, scales::SucroseBrix};
 //! use fixed::types::I8F24;
@@ -90,6 +95,134 @@ const SLOPE_AT_WATER: f64 = {
 /// negated (about 0.14 %Brix).
 pub const BELOW_WATER_BAND_BRIX: f64 = BELOW_WATER_BAND / SLOPE_AT_WATER;
 
+/// Second derivative d²nD/d%Brix² of the table's cubic at 0 %Brix (the first
+/// four entries): `(2·y0 − 5·y1 + 4·y2 − y3) / step²`.
+const CURVATURE_AT_WATER: f64 = {
+    let y = ICUMSA_SUCROSE.ys;
+    (2.0 * y[0] as f64 - 5.0 * y[1] as f64 + 4.0 * y[2] as f64 - y[3] as f64)
+        / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
+};
+
+/// nD of the table's last entry (85 %Brix).
+const TOP_ND: f64 = {
+    let y = ICUMSA_SUCROSE.ys;
+    y[y.len() - 1] as f64 / ICUMSA_SUCROSE.y_den as f64
+};
+
+/// The table's top %Brix (85).
+const TOP_BRIX: f64 =
+    (ICUMSA_SUCROSE.x0 + ICUMSA_SUCROSE.step * (ICUMSA_SUCROSE.ys.len() as i32 - 1)) as f64;
+
+/// dnD/d%Brix and d²nD/d%Brix² of the table's cubic at its last entry (the
+/// last four entries).
+const SLOPE_AT_TOP: f64 = {
+    let y = ICUMSA_SUCROSE.ys;
+    let n = y.len();
+    (11.0 * y[n - 1] as f64 - 18.0 * y[n - 2] as f64 + 9.0 * y[n - 3] as f64
+        - 2.0 * y[n - 4] as f64)
+        / (6.0 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
+};
+const CURVATURE_AT_TOP: f64 = {
+    let y = ICUMSA_SUCROSE.ys;
+    let n = y.len();
+    (2.0 * y[n - 1] as f64 - 5.0 * y[n - 2] as f64 + 4.0 * y[n - 3] as f64 - y[n - 4] as f64)
+        / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
+};
+
+/// How far below 0 %Brix [`apparent_brix`] reads: water at 40 °C reads about
+/// −1.7 %Brix on the 20 °C scale, and a noisy zero a little further.
+pub const APPARENT_BRIX_MIN: f64 = -2.5;
+/// How far above 85 %Brix [`apparent_brix`] reads: an 85 %Brix syrup at 5 °C
+/// reads about 85.9 %Brix on the 20 °C scale.
+pub const APPARENT_BRIX_MAX: f64 = 87.0;
+
+/// `TOP_BRIX` plus a value beyond the table's end along its end parabola
+/// (`n = n_end + slope·b + curvature·b²/2`), with `u = (n − n_end)/slope`:
+/// `b = 2u / (1 + √(1 + 2·(curvature/slope)·u))`, the stable root.
+fn beyond_end<S: Scalar>(u: S, bend: S) -> Result<S, Error> {
+    let root = S::ONE.add(S::TWO.mul(bend)?.mul(u)?)?;
+    if root <= S::ZERO {
+        return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+    }
+    S::TWO.mul(u)?.div(S::ONE.add(root.sqrt()?)?)
+}
+
+/// %Brix of a sucrose solution's nD read at its own temperature, on the
+/// 20 °C scale: what a temperature correction in %Brix starts from.
+///
+/// Inside the table (0–85 %Brix) it is [`SucroseBrix`]'s value. Beyond its
+/// ends it continues along the table's end parabola (slope and curvature of
+/// its end cubic), from [`APPARENT_BRIX_MIN`] to [`APPARENT_BRIX_MAX`]: water
+/// read warm and a dense syrup read cold are real samples whose reading at
+/// temperature lies off the 20 °C scale, and the correction is smooth across
+/// the ends. Further out: [`Error::OutOfRange`] with
+/// [`Quantity::RefractiveIndex`].
+///
+/// ```
+/// use embedded_optics::refractometer::scales::apparent_brix;
+/// // Water at 30 °C (nD 1.33194): about −0.74 %Brix before compensation.
+/// let b: f64 = apparent_brix(1.33194).unwrap();
+/// assert!((b + 0.74).abs() < 0.01);
+/// ```
+pub fn apparent_brix<S: Scalar>(nd: S) -> Result<S, Error> {
+    let nd = crate::optics::refraction::check_index(nd)?;
+    let off = Error::OutOfRange(Quantity::RefractiveIndex);
+    let b = if nd < lit!(S, WATER_ND) {
+        // (n − n_w)/slope in %Brix, ×10⁴ in two steps (see `value_at`).
+        let u = nd
+            .sub(lit!(S, WATER_ND))?
+            .mul(lit!(S, 100.0))?
+            .mul(lit!(S, 100.0))?
+            .div(lit!(S, SLOPE_AT_WATER * 10_000.0))?;
+        if u < lit!(S, 2.0 * APPARENT_BRIX_MIN) {
+            return Err(off);
+        }
+        beyond_end(u, lit!(S, CURVATURE_AT_WATER / SLOPE_AT_WATER))?
+    } else if nd > lit!(S, TOP_ND) {
+        let u = nd
+            .sub(lit!(S, TOP_ND))?
+            .mul(lit!(S, 100.0))?
+            .mul(lit!(S, 100.0))?
+            .div(lit!(S, SLOPE_AT_TOP * 10_000.0))?;
+        if u > lit!(S, 2.0 * (APPARENT_BRIX_MAX - TOP_BRIX)) {
+            return Err(off);
+        }
+        beyond_end(u, lit!(S, CURVATURE_AT_TOP / SLOPE_AT_TOP))?.add(lit!(S, TOP_BRIX))?
+    } else {
+        return SucroseBrix.value_at(nd);
+    };
+    b.check_range(
+        Quantity::RefractiveIndex,
+        lit!(S, APPARENT_BRIX_MIN),
+        lit!(S, APPARENT_BRIX_MAX),
+    )
+}
+
+/// dnD/d%Brix of the sucrose scale at `brix` (0–85 %Brix; the end slopes
+/// beyond), from a 0.5 %Brix chord: turns a %Brix uncertainty into nD.
+pub fn sucrose_slope<S: Scalar>(brix: S) -> Result<S, Error> {
+    let b = brix.check_range(
+        Quantity::ScaleValue,
+        lit!(S, APPARENT_BRIX_MIN),
+        lit!(S, APPARENT_BRIX_MAX),
+    )?;
+    if b <= S::ZERO {
+        return Ok(lit!(S, SLOPE_AT_WATER));
+    }
+    let top = lit!(S, TOP_BRIX);
+    if b >= top {
+        return Ok(lit!(S, SLOPE_AT_TOP));
+    }
+    let h = lit!(S, 0.5);
+    let (lo, hi) = if b.add(h)? <= top {
+        (b, b.add(h)?)
+    } else {
+        (b.sub(h)?, b)
+    };
+    let rise = SucroseBrix.nd20_at(hi)?.sub(SucroseBrix.nd20_at(lo)?)?;
+    rise.div(h)
+}
+
 impl<S: Scalar> TradeScale<S> for SucroseBrix {
     /// %Brix at `nd20`; from water down to [`BELOW_WATER_BAND`] below it, the
     /// table's tangent at 0 %Brix gives a small negative value.
@@ -138,7 +271,7 @@ impl<S: Scalar> TradeScale<S> for SucroseBrix {
 /// (for sensitivities; within 2 % of the cubic's tangent, the slope changing
 /// by under 4 % across a cell). No division: the entries' difference over
 /// 2^10 times a constant.
-pub(crate) fn sucrose_slope<S: Scalar>(brix: S) -> Result<S, Error> {
+pub(crate) fn sucrose_cell_slope<S: Scalar>(brix: S) -> Result<S, Error> {
     let cells = ICUMSA_SUCROSE.ys.len() - 1;
     let k = usize::try_from(brix.round_to_i32()?.max(0) / ICUMSA_SUCROSE.step)
         .unwrap_or(0)

@@ -14,6 +14,7 @@ mod lens;
 mod refraction;
 mod scalar;
 mod search;
+mod trade;
 
 use harness::{Row, row};
 
@@ -39,7 +40,12 @@ fn all_rows() -> Vec<Row> {
         row::<cal::GlycolMassFromNd>(),
         row::<cal::GlycolFreezingFromNd>(),
         row::<cal::BatteryAcidFromNd>(),
+        row::<trade::UreaFromNd>(),
+        row::<trade::MethanolFreezing>(),
+        row::<trade::MustDensityFromNd>(),
+        row::<trade::SyrupDryMatterFromNd>(),
         row::<cal::SucroseCorrection>(),
+        row::<trade::SucroseTemperatureModel>(),
         row::<cal::LinearSampleCompensation>(),
         row::<cal::PrismIndex>(),
         row::<cal::ThermistorSteinhartHart>(),
