@@ -175,14 +175,107 @@ impl<E> From<Error> for DriverError<E> {
     }
 }
 
-/// Focus actuator on an I²C bus.
-pub struct FocusActuatorDriver<I2C, D> {
-    i2c: I2C,
-    delay: D,
+/// What the blocking and the async drivers share: the checked configuration,
+/// where the lens is, and the planning of a move into steps. The front ends only
+/// write the bytes and wait.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct MoveState {
     layout: BusLayout,
     motion: MotionProfile,
     position: Option<u16>,
     last_approach: Option<Approach>,
+}
+
+/// The bytes of one bus write (register byte first, if any).
+pub(crate) struct BusWrite {
+    buf: [u8; 3],
+    len: usize,
+}
+
+impl BusWrite {
+    pub(crate) fn bytes(&self) -> &[u8] {
+        self.buf.get(..self.len).unwrap_or(&self.buf)
+    }
+}
+
+impl MoveState {
+    /// Checks the layout and the motion profile; position unknown.
+    pub(crate) fn new(layout: BusLayout, motion: MotionProfile) -> Result<Self, Error> {
+        Ok(MoveState {
+            layout: layout.check()?,
+            motion: motion.check()?,
+            position: None,
+            last_approach: None,
+        })
+    }
+
+    pub(crate) fn position(&self) -> Option<u16> {
+        self.position
+    }
+
+    pub(crate) fn last_approach(&self) -> Option<Approach> {
+        self.last_approach
+    }
+
+    pub(crate) fn address(&self) -> u8 {
+        self.layout.address
+    }
+
+    pub(crate) fn assume_position(&mut self, code: u16) -> Result<(), Error> {
+        self.position = Some(self.check_code(code)?);
+        Ok(())
+    }
+
+    fn check_code(&self, code: u16) -> Result<u16, Error> {
+        if code > self.layout.max_code() {
+            Err(Error::OutOfRange(Quantity::ActuatorCode))
+        } else {
+            Ok(code)
+        }
+    }
+
+    /// Starts a move: checks `target` (nothing is written for a code beyond the
+    /// layout's width) and records the direction when the position is known.
+    pub(crate) fn begin(&mut self, target: u16) -> Result<u16, Error> {
+        let target = self.check_code(target)?;
+        if let Some(at) = self.position
+            && target != at
+        {
+            self.last_approach = Some(if target > at {
+                Approach::FromInfinity
+            } else {
+                Approach::FromMacro
+            });
+        }
+        Ok(target)
+    }
+
+    /// The next code to write on the way to `target` and its bytes, `None` once
+    /// there: from an unknown position straight to the target, otherwise at most
+    /// `max_step_codes` closer.
+    pub(crate) fn next_step(&self, target: u16) -> Option<(u16, BusWrite)> {
+        let code = match self.position {
+            None => target,
+            Some(at) if at == target => return None,
+            Some(at) if target > at => at.saturating_add(self.motion.max_step_codes).min(target),
+            Some(at) => at.saturating_sub(self.motion.max_step_codes).max(target),
+        };
+        let (buf, len) = self.layout.frame(code);
+        Some((code, BusWrite { buf, len }))
+    }
+
+    /// Records a write that went through; returns the settle wait, µs.
+    pub(crate) fn written(&mut self, code: u16) -> u32 {
+        self.position = Some(code);
+        self.motion.settle_us()
+    }
+}
+
+/// Focus actuator on an I²C bus.
+pub struct FocusActuatorDriver<I2C, D> {
+    i2c: I2C,
+    delay: D,
+    state: MoveState,
 }
 
 impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
@@ -197,73 +290,37 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
         Ok(FocusActuatorDriver {
             i2c,
             delay,
-            layout: layout.check()?,
-            motion: motion.check()?,
-            position: None,
-            last_approach: None,
+            state: MoveState::new(layout, motion)?,
         })
     }
 
     /// Code last written, if any.
     pub fn position(&self) -> Option<u16> {
-        self.position
+        self.state.position()
     }
 
     /// Direction of the last move, for the actuator model's hysteresis correction.
     pub fn last_approach(&self) -> Option<Approach> {
-        self.last_approach
+        self.state.last_approach()
     }
 
     /// Declares where the lens is without writing (for example after a reset
     /// that parks it at a known code), so the next move is stepped from there.
     pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
-        self.position = Some(self.check_code(code)?);
-        Ok(())
-    }
-
-    fn check_code(&self, code: u16) -> Result<u16, Error> {
-        if code > self.layout.max_code() {
-            Err(Error::OutOfRange(Quantity::ActuatorCode))
-        } else {
-            Ok(code)
-        }
-    }
-
-    /// Writes one code, then waits the settle time.
-    fn step(&mut self, code: u16) -> Result<(), DriverError<I2C::Error>> {
-        let (buf, n) = self.layout.frame(code);
-        let bytes = buf.get(..n).unwrap_or(&buf);
-        self.i2c
-            .write(self.layout.address, bytes)
-            .map_err(DriverError::Bus)?;
-        self.position = Some(code);
-        self.delay.delay_us(self.motion.settle_us());
-        Ok(())
+        self.state.assume_position(code)
     }
 
     /// Moves to `target` in steps of at most `max_step_codes`, settling after
     /// each. From an unknown position the first write goes straight to the target.
     /// A code beyond the layout's width is refused without a bus write.
     pub fn move_to(&mut self, target: u16) -> Result<(), DriverError<I2C::Error>> {
-        let target = self.check_code(target)?;
-        let Some(mut at) = self.position else {
-            return self.step(target);
-        };
-        if target != at {
-            self.last_approach = Some(if target > at {
-                Approach::FromInfinity
-            } else {
-                Approach::FromMacro
-            });
-        }
-        while at != target {
-            let max = self.motion.max_step_codes;
-            at = if target > at {
-                at.saturating_add(max).min(target)
-            } else {
-                at.saturating_sub(max).max(target)
-            };
-            self.step(at)?;
+        let target = self.state.begin(target)?;
+        while let Some((code, write)) = self.state.next_step(target) {
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .map_err(DriverError::Bus)?;
+            let settle_us = self.state.written(code);
+            self.delay.delay_us(settle_us);
         }
         Ok(())
     }
