@@ -28,24 +28,9 @@ fn block_on<F: Future>(f: F) -> F::Output {
     }
 }
 
-const TEN_BIT: BusLayout = BusLayout::ten_bit_word(0x0C);
-
-/// 12-bit part with a register byte and a mode bit (bit 15) in every write.
-const TWELVE_BIT: BusLayout = BusLayout {
-    address: 0x72,
-    code_bits: 12,
-    register: Some(0x10),
-    shift: 0,
-    fixed_bits: 0x8000,
-    data_bytes: 2,
-};
-
-/// 100 Hz resonance, one period per step: 10 000 µs.
-const MOTION: MotionProfile = MotionProfile {
-    max_step_codes: 100,
-    resonance_hz: 100,
-    settle_periods: 1,
-};
+#[path = "support/driver_layouts.rs"]
+mod driver_layouts;
+use driver_layouts::{MOTION, TEN_BIT, TWELVE_BIT};
 
 fn finish(drv: AsyncFocusActuatorDriver<I2cMock, CheckedDelay>) {
     let (mut i2c, mut delay) = drv.release();

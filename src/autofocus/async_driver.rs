@@ -35,7 +35,9 @@
 //! ```
 
 use crate::autofocus::actuator::Approach;
-use crate::autofocus::driver::{BusLayout, DriverError, MotionProfile, MoveState};
+use crate::autofocus::driver::{
+    BusLayout, DriverError, MotionProfile, MoveState, front_end_common,
+};
 use crate::error::Error;
 use embedded_hal_async::delay::DelayNs;
 use embedded_hal_async::i2c::I2c;
@@ -48,36 +50,7 @@ pub struct AsyncFocusActuatorDriver<I2C, D> {
 }
 
 impl<I2C: I2c, D: DelayNs> AsyncFocusActuatorDriver<I2C, D> {
-    /// Takes the bus and a delay; checks the layout and motion profile (the same
-    /// checks as the blocking driver). Nothing is written until the first move.
-    pub fn new(
-        i2c: I2C,
-        delay: D,
-        layout: BusLayout,
-        motion: MotionProfile,
-    ) -> Result<Self, Error> {
-        Ok(AsyncFocusActuatorDriver {
-            i2c,
-            delay,
-            state: MoveState::new(layout, motion)?,
-        })
-    }
-
-    /// Code last written, if any.
-    pub fn position(&self) -> Option<u16> {
-        self.state.position()
-    }
-
-    /// Direction of the last move, for the actuator model's hysteresis correction.
-    pub fn last_approach(&self) -> Option<Approach> {
-        self.state.last_approach()
-    }
-
-    /// Declares where the lens is without writing, so the next move is stepped
-    /// from there.
-    pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
-        self.state.assume_position(code)
-    }
+    front_end_common!();
 
     /// Moves to `target` in steps of at most `max_step_codes`, awaiting the
     /// settle time after each; from an unknown position straight to the target.
@@ -94,10 +67,5 @@ impl<I2C: I2c, D: DelayNs> AsyncFocusActuatorDriver<I2C, D> {
             self.delay.delay_us(settle_us).await;
         }
         Ok(())
-    }
-
-    /// Gives back the bus and the delay.
-    pub fn release(self) -> (I2C, D) {
-        (self.i2c, self.delay)
     }
 }

@@ -278,37 +278,55 @@ pub struct FocusActuatorDriver<I2C, D> {
     state: MoveState,
 }
 
+/// The methods the blocking and the async front ends have alike: they only
+/// build, read or set the shared [`MoveState`]. Used inside each front end's
+/// `impl` block (fields `i2c`, `delay`, `state`).
+macro_rules! front_end_common {
+    () => {
+        /// Takes the bus and a delay; checks the layout and motion profile.
+        /// Nothing is written until the first move. The lens position is unknown
+        /// until then.
+        pub fn new(
+            i2c: I2C,
+            delay: D,
+            layout: BusLayout,
+            motion: MotionProfile,
+        ) -> Result<Self, Error> {
+            Ok(Self {
+                i2c,
+                delay,
+                state: MoveState::new(layout, motion)?,
+            })
+        }
+
+        /// Code last written, if any.
+        pub fn position(&self) -> Option<u16> {
+            self.state.position()
+        }
+
+        /// Direction of the last move, for the actuator model's hysteresis
+        /// correction.
+        pub fn last_approach(&self) -> Option<Approach> {
+            self.state.last_approach()
+        }
+
+        /// Declares where the lens is without writing (for example after a reset
+        /// that parks it at a known code), so the next move is stepped from there.
+        pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
+            self.state.assume_position(code)
+        }
+
+        /// Gives back the bus and the delay.
+        pub fn release(self) -> (I2C, D) {
+            (self.i2c, self.delay)
+        }
+    };
+}
+#[cfg(feature = "async")]
+pub(crate) use front_end_common;
+
 impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
-    /// Takes the bus and a delay; checks the layout and motion profile. Nothing is
-    /// written until the first move. The lens position is unknown until then.
-    pub fn new(
-        i2c: I2C,
-        delay: D,
-        layout: BusLayout,
-        motion: MotionProfile,
-    ) -> Result<Self, Error> {
-        Ok(FocusActuatorDriver {
-            i2c,
-            delay,
-            state: MoveState::new(layout, motion)?,
-        })
-    }
-
-    /// Code last written, if any.
-    pub fn position(&self) -> Option<u16> {
-        self.state.position()
-    }
-
-    /// Direction of the last move, for the actuator model's hysteresis correction.
-    pub fn last_approach(&self) -> Option<Approach> {
-        self.state.last_approach()
-    }
-
-    /// Declares where the lens is without writing (for example after a reset
-    /// that parks it at a known code), so the next move is stepped from there.
-    pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
-        self.state.assume_position(code)
-    }
+    front_end_common!();
 
     /// Moves to `target` in steps of at most `max_step_codes`, settling after
     /// each. From an unknown position the first write goes straight to the target.
@@ -323,10 +341,5 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
             self.delay.delay_us(settle_us);
         }
         Ok(())
-    }
-
-    /// Gives back the bus and the delay.
-    pub fn release(self) -> (I2C, D) {
-        (self.i2c, self.delay)
     }
 }

@@ -255,7 +255,10 @@ pub fn frame_to_brix<S: Tabled>(i: usize) {
 /// it (boundary found, averaged): what a reading starts from.
 fn conversion_setup_reading<S: Tabled>(
     i: usize,
-) -> Option<(Refractometer<S>, embedded_optics::refractometer::instrument::Averaged<S>)> {
+) -> Option<(
+    Refractometer<S>,
+    embedded_optics::refractometer::instrument::Averaged<S>,
+)> {
     let mut inst: Refractometer<S> = chains::refractometer::<S>().ok()?;
     let (f, t) = chain_input::<S>(i);
     let avg = inst.feed(f, t).ok()??;
@@ -310,10 +313,9 @@ pub fn hand_written_brix(i: usize) {
     let [c0, c1, c2, c3] = HAND_CUBIC;
     let n_led = c0 + p * (c1 + p * (c2 + p * c3));
     let nd = n_led + HAND_DISPERSION;
-    let brix_t = ((((11758.74 * nd - 88885.21) * nd + 270177.93) * nd - 413145.80) * nd
-        + 318417.95)
-        * nd
-        - 99127.4536;
+    let brix_t =
+        ((((11758.74 * nd - 88885.21) * nd + 270177.93) * nd - 413145.80) * nd + 318417.95) * nd
+            - 99127.4536;
     // Cell and weights on the uniform grid (clamped to the table).
     let ft = ((t - 8.0) * (1.0 / 3.0)).clamp(0.0, 3.999);
     let fb = ((brix_t - 10.0) * 0.2).clamp(0.0, 3.999);
