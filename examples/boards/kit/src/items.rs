@@ -388,24 +388,28 @@ impl I2c for NullBus {
     }
 }
 
-/// Base of [`search_steps`]: search, driver and the first move.
-fn search_setup<S: Tabled>() -> Option<(
-    FocusSearch<S>,
-    FocusActuatorDriver<NullBus, chains::CountingDelay>,
-    Step,
-)> {
-    let lens = LensModel::<S>::phone_module();
-    let mut search = FocusSearch::new(chains::focus_config(&lens).ok()?).ok()?;
-    let driver =
-        FocusActuatorDriver::new(NullBus, chains::CountingDelay { ns: 0 }, LAYOUT, MOTION).ok()?;
-    let step = search.start();
-    Some((search, driver, step))
+/// The search of [`search_steps`], built in the caller's frame. The settings'
+/// park code comes from the host (the lens model that gives it is set-up, whose
+/// stack the closed-loop item shows), so that the item's stack is the search's.
+fn search<S: Tabled>() -> Option<FocusSearch<S>> {
+    let code_max = LensModel::<S>::phone_module().code_max;
+    FocusSearch::new(chains::search_config(code_max, S::FOCUS_PARK)).ok()
 }
 
-/// Base of [`search_steps`].
+/// The driver of [`search_steps`], on a bus that takes every write.
+fn null_driver() -> Option<FocusActuatorDriver<NullBus, chains::CountingDelay>> {
+    FocusActuatorDriver::new(NullBus, chains::CountingDelay { ns: 0 }, LAYOUT, MOTION).ok()
+}
+
+/// Base of [`search_steps`]: search, driver and the first move.
 pub fn search_steps_base<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
-    black_box(search_setup::<S>().map(|(_, _, s)| s));
+    let (mut search, driver) = (search::<S>(), null_driver());
+    let (Some(search), Some(driver)) = (search.as_mut(), driver.as_ref()) else {
+        return;
+    };
+    black_box(driver);
+    black_box(search.start());
 }
 
 /// A whole contrast search replayed from the metrics the host's run saw: per
@@ -413,9 +417,12 @@ pub fn search_steps_base<S: Tabled>(i: usize) {
 /// (`units`: the run's steps).
 pub fn search_steps<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
-    let Some((mut search, mut driver, mut step)) = search_setup::<S>() else {
+    // Held where they are built; a step updates them in place.
+    let (mut search, mut driver) = (search::<S>(), null_driver());
+    let (Some(search), Some(driver)) = (search.as_mut(), driver.as_mut()) else {
         return;
     };
+    let mut step = search.start();
     for &m in S::focus_metrics() {
         if let Step::Move(code) = step {
             black_box(driver.move_to(u16::try_from(code).unwrap_or(0)).is_ok());
