@@ -175,28 +175,33 @@ impl<E> From<Error> for DriverError<E> {
     }
 }
 
-/// Focus actuator on an I²C bus.
-pub struct FocusActuatorDriver<I2C, D> {
-    i2c: I2C,
-    delay: D,
+/// What the blocking and the async drivers share: the checked configuration,
+/// where the lens is, and the planning of a move into steps. The front ends only
+/// write the bytes and wait.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct MoveState {
     layout: BusLayout,
     motion: MotionProfile,
     position: Option<u16>,
     last_approach: Option<Approach>,
 }
 
-impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
-    /// Takes the bus and a delay; checks the layout and motion profile. Nothing is
-    /// written until the first move. The lens position is unknown until then.
-    pub fn new(
-        i2c: I2C,
-        delay: D,
-        layout: BusLayout,
-        motion: MotionProfile,
-    ) -> Result<Self, Error> {
-        Ok(FocusActuatorDriver {
-            i2c,
-            delay,
+/// The bytes of one bus write (register byte first, if any).
+pub(crate) struct BusWrite {
+    buf: [u8; 3],
+    len: usize,
+}
+
+impl BusWrite {
+    pub(crate) fn bytes(&self) -> &[u8] {
+        self.buf.get(..self.len).unwrap_or(&self.buf)
+    }
+}
+
+impl MoveState {
+    /// Checks the layout and the motion profile; position unknown.
+    pub(crate) fn new(layout: BusLayout, motion: MotionProfile) -> Result<Self, Error> {
+        Ok(MoveState {
             layout: layout.check()?,
             motion: motion.check()?,
             position: None,
@@ -204,19 +209,19 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
         })
     }
 
-    /// Code last written, if any.
-    pub fn position(&self) -> Option<u16> {
+    pub(crate) fn position(&self) -> Option<u16> {
         self.position
     }
 
-    /// Direction of the last move, for the actuator model's hysteresis correction.
-    pub fn last_approach(&self) -> Option<Approach> {
+    pub(crate) fn last_approach(&self) -> Option<Approach> {
         self.last_approach
     }
 
-    /// Declares where the lens is without writing (for example after a reset
-    /// that parks it at a known code), so the next move is stepped from there.
-    pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
+    pub(crate) fn address(&self) -> u8 {
+        self.layout.address
+    }
+
+    pub(crate) fn assume_position(&mut self, code: u16) -> Result<(), Error> {
         self.position = Some(self.check_code(code)?);
         Ok(())
     }
@@ -229,47 +234,112 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
         }
     }
 
-    /// Writes one code, then waits the settle time.
-    fn step(&mut self, code: u16) -> Result<(), DriverError<I2C::Error>> {
-        let (buf, n) = self.layout.frame(code);
-        let bytes = buf.get(..n).unwrap_or(&buf);
-        self.i2c
-            .write(self.layout.address, bytes)
-            .map_err(DriverError::Bus)?;
-        self.position = Some(code);
-        self.delay.delay_us(self.motion.settle_us());
-        Ok(())
-    }
-
-    /// Moves to `target` in steps of at most `max_step_codes`, settling after
-    /// each. From an unknown position the first write goes straight to the target.
-    /// A code beyond the layout's width is refused without a bus write.
-    pub fn move_to(&mut self, target: u16) -> Result<(), DriverError<I2C::Error>> {
+    /// Starts a move: checks `target` (nothing is written for a code beyond the
+    /// layout's width) and records the direction when the position is known.
+    pub(crate) fn begin(&mut self, target: u16) -> Result<u16, Error> {
         let target = self.check_code(target)?;
-        let Some(mut at) = self.position else {
-            return self.step(target);
-        };
-        if target != at {
+        if let Some(at) = self.position
+            && target != at
+        {
             self.last_approach = Some(if target > at {
                 Approach::FromInfinity
             } else {
                 Approach::FromMacro
             });
         }
-        while at != target {
-            let max = self.motion.max_step_codes;
-            at = if target > at {
-                at.saturating_add(max).min(target)
-            } else {
-                at.saturating_sub(max).max(target)
-            };
-            self.step(at)?;
-        }
-        Ok(())
+        Ok(target)
     }
 
-    /// Gives back the bus and the delay.
-    pub fn release(self) -> (I2C, D) {
-        (self.i2c, self.delay)
+    /// The next code to write on the way to `target` and its bytes, `None` once
+    /// there: from an unknown position straight to the target, otherwise at most
+    /// `max_step_codes` closer.
+    pub(crate) fn next_step(&self, target: u16) -> Option<(u16, BusWrite)> {
+        let code = match self.position {
+            None => target,
+            Some(at) if at == target => return None,
+            Some(at) if target > at => at.saturating_add(self.motion.max_step_codes).min(target),
+            Some(at) => at.saturating_sub(self.motion.max_step_codes).max(target),
+        };
+        let (buf, len) = self.layout.frame(code);
+        Some((code, BusWrite { buf, len }))
+    }
+
+    /// Records a write that went through; returns the settle wait, µs.
+    pub(crate) fn written(&mut self, code: u16) -> u32 {
+        self.position = Some(code);
+        self.motion.settle_us()
+    }
+}
+
+/// Focus actuator on an I²C bus.
+pub struct FocusActuatorDriver<I2C, D> {
+    i2c: I2C,
+    delay: D,
+    state: MoveState,
+}
+
+/// The methods the blocking and the async front ends have alike: they only
+/// build, read or set the shared [`MoveState`]. Used inside each front end's
+/// `impl` block (fields `i2c`, `delay`, `state`).
+macro_rules! front_end_common {
+    () => {
+        /// Takes the bus and a delay; checks the layout and motion profile.
+        /// Nothing is written until the first move. The lens position is unknown
+        /// until then.
+        pub fn new(
+            i2c: I2C,
+            delay: D,
+            layout: BusLayout,
+            motion: MotionProfile,
+        ) -> Result<Self, Error> {
+            Ok(Self {
+                i2c,
+                delay,
+                state: MoveState::new(layout, motion)?,
+            })
+        }
+
+        /// Code last written, if any.
+        pub fn position(&self) -> Option<u16> {
+            self.state.position()
+        }
+
+        /// Direction of the last move, for the actuator model's hysteresis
+        /// correction.
+        pub fn last_approach(&self) -> Option<Approach> {
+            self.state.last_approach()
+        }
+
+        /// Declares where the lens is without writing (for example after a reset
+        /// that parks it at a known code), so the next move is stepped from there.
+        pub fn assume_position(&mut self, code: u16) -> Result<(), Error> {
+            self.state.assume_position(code)
+        }
+
+        /// Gives back the bus and the delay.
+        pub fn release(self) -> (I2C, D) {
+            (self.i2c, self.delay)
+        }
+    };
+}
+#[cfg(feature = "async")]
+pub(crate) use front_end_common;
+
+impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
+    front_end_common!();
+
+    /// Moves to `target` in steps of at most `max_step_codes`, settling after
+    /// each. From an unknown position the first write goes straight to the target.
+    /// A code beyond the layout's width is refused without a bus write.
+    pub fn move_to(&mut self, target: u16) -> Result<(), DriverError<I2C::Error>> {
+        let target = self.state.begin(target)?;
+        while let Some((code, write)) = self.state.next_step(target) {
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .map_err(DriverError::Bus)?;
+            let settle_us = self.state.written(code);
+            self.delay.delay_us(settle_us);
+        }
+        Ok(())
     }
 }

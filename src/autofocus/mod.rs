@@ -6,6 +6,7 @@
 //! - [`actuator`]: VCM or stepper code ↔ lens position ↔ subject distance, from
 //!   factory points;
 //! - [`driver`]: the actuator's I²C driver on `embedded-hal` 1.0;
+//! - `async_driver` (feature `async`): the same driver on `embedded-hal-async` 1.0;
 //! - [`assist`]: focus targets from a phase-detect disparity or a range sensor;
 //! - [`metric`]: focus metrics on a region of interest;
 //! - [`search`]: contrast and hybrid search as a per-frame state machine;
@@ -16,6 +17,8 @@
 
 pub mod actuator;
 pub mod assist;
+#[cfg(feature = "async")]
+pub mod async_driver;
 pub mod driver;
 pub mod focus;
 pub mod metric;

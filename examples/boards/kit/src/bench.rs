@@ -6,8 +6,8 @@
 //! `item|<name>|<units>|<calls>|<ticks>|<stack bytes>|<ticks of the base, if any>`
 
 use crate::items::ITEMS;
+use crate::platform::{self, hprintln};
 use crate::{ROWS, meter};
-use cortex_m_semihosting::hprintln;
 
 /// Calls per item: every table row, four times.
 const CALLS: usize = 4 * ROWS;
@@ -16,19 +16,15 @@ fn nothing(_: usize) {}
 
 /// The whole benchmark image: measures, prints, ends QEMU.
 pub fn main() -> ! {
-    let ok = match cortex_m::Peripherals::take() {
-        Some(mut p) => {
-            run(&mut p.SYST);
-            true
-        }
-        None => false,
-    };
+    let ok = platform::start_counter();
+    if ok {
+        run();
+    }
     crate::finish(ok)
 }
 
-/// Measures and prints everything. `syst` is the core's SysTick.
-pub fn run(syst: &mut cortex_m::peripheral::SYST) {
-    meter::start(syst);
+/// Measures and prints everything (the counter running).
+pub fn run() {
     let cal = meter::ticks(meter::nops_1000, CALLS);
     let call = meter::ticks(nothing, CALLS);
     hprintln!("cal|{}|{}|{}|{}", 1000 * CALLS, cal, call, CALLS);

@@ -8,8 +8,11 @@ pub mod bench;
 pub mod chains;
 pub mod items;
 pub mod meter;
+pub mod platform;
 #[cfg(feature = "probe")]
 pub mod probe;
+#[cfg(not(feature = "probe"))]
+pub mod report;
 pub mod rows;
 
 use chains::{FRAMES, SUBJECTS};
@@ -336,13 +339,5 @@ fn no_panic(_: &core::panic::PanicInfo) -> ! {
 /// Ends the image: QEMU exits with success or failure (semihosting), a real
 /// board without a debugger sleeps.
 pub fn finish(ok: bool) -> ! {
-    use cortex_m_semihosting::debug;
-    debug::exit(if ok {
-        debug::EXIT_SUCCESS
-    } else {
-        debug::EXIT_FAILURE
-    });
-    loop {
-        cortex_m::asm::wfi();
-    }
+    platform::exit(ok)
 }

@@ -1,35 +1,25 @@
 //! Cost without a cycle counter. Under QEMU `-icount shift=5` every executed
-//! instruction advances virtual time by 32 ns, and SysTick (clocked from the core)
-//! counts that time, so a tick count is proportional to instructions executed and
-//! identical on every run. The factor is measured in the same image with a block
-//! of `nop`s ([`nops_1000`]).
+//! instruction advances virtual time by 32 ns, and the core's counter (SysTick on
+//! Cortex-M, `mcycle` on RISC-V; see [`platform`](crate::platform)) counts that
+//! time, so a tick count is proportional to instructions executed and identical
+//! on every run. The factor is measured in the same image with a block of
+//! `nop`s ([`nops_1000`]).
 
+use crate::platform;
 use core::hint::black_box;
-use cortex_m::peripheral::SYST;
-use cortex_m::peripheral::syst::SystClkSource;
 
-/// SysTick counts down from this 24-bit reload.
-const RELOAD: u32 = 0x00FF_FFFF;
-
-/// Starts SysTick free-running from the core clock, no interrupt.
-pub fn start(syst: &mut SYST) {
-    syst.set_clock_source(SystClkSource::Core);
-    syst.set_reload(RELOAD);
-    syst.clear_current();
-    syst.enable_counter();
-}
-
-/// SysTick ticks spent by `calls` calls of `run(i)` for i = 0..calls, read
-/// around each call (one call must stay below 2^24 ticks, one wrap at most).
+/// Counter ticks spent by `calls` calls of `run(i)` for i = 0..calls, read
+/// around each call (one call must stay below one wrap of the counter: 2^24
+/// ticks for SysTick).
 #[inline(never)]
 pub fn ticks(run: fn(usize), calls: usize) -> u64 {
     let run = black_box(run);
     let mut sum = 0u64;
     for i in 0..calls {
-        let start = SYST::get_current();
+        let start = platform::counter();
         run(black_box(i));
-        let end = SYST::get_current();
-        sum += u64::from(start.wrapping_sub(end) & RELOAD);
+        let end = platform::counter();
+        sum += u64::from(platform::elapsed(start, end));
     }
     sum
 }
@@ -45,7 +35,7 @@ pub fn nops_1000(_: usize) {
 const PAINT: u32 = 0xC0FF_EE55;
 
 unsafe extern "C" {
-    /// First free RAM word after .data/.bss (cortex-m-rt): the stack may grow down to here.
+    /// First free RAM word after .data/.bss (cortex-m-rt and riscv-rt): the stack may grow down to here.
     static __sheap: u32;
 }
 
@@ -56,7 +46,7 @@ fn stack_floor() -> usize {
 /// Paints the free stack below this function's own frame.
 #[inline(never)]
 fn paint() {
-    let top = cortex_m::register::msp::read() as usize - 16;
+    let top = platform::stack_pointer() - 16;
     let mut a = stack_floor();
     while a < top {
         // SAFETY: [floor, sp - 16) is unused stack, word aligned, in RAM.
@@ -80,7 +70,7 @@ fn high_water() -> usize {
 #[inline(never)]
 pub fn stack_bytes(run: fn(usize), calls: usize) -> u32 {
     paint();
-    let sp = cortex_m::register::msp::read() as usize;
+    let sp = platform::stack_pointer();
     let run = black_box(run);
     for i in 0..calls {
         run(black_box(i));

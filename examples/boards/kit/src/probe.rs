@@ -38,7 +38,5 @@ pub fn main() -> ! {
         let nothing: Option<u8> = black_box(None);
         black_box(nothing.unwrap());
     }
-    loop {
-        cortex_m::asm::wfi();
-    }
+    crate::platform::sleep()
 }
