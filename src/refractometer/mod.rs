@@ -50,5 +50,6 @@ pub mod geometry;
 pub mod instrument;
 pub mod record;
 pub mod scales;
+pub mod store;
 pub mod table;
 pub mod thermistor;
