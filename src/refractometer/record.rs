@@ -2,8 +2,9 @@
 //! a CRC, and the two-slot rule that keeps the last good calibration through a
 //! power cut in the middle of a write.
 //!
-//! The crate encodes, decodes and chooses slots; the firmware owns the flash.
-//! Write a new record to [`SlotChoice::write_to`] (the older or invalid slot),
+//! This module encodes, decodes and chooses slots;
+//! [`store`](super::store) keeps them on a `NorFlash` or EEPROM device. By hand:
+//! write a new record to [`SlotChoice::write_to`] (the older or invalid slot),
 //! never over the record in use: a write torn at any byte leaves the other slot
 //! intact, and the next boot still finds it.
 //!
