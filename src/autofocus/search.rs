@@ -4,7 +4,8 @@
 //! [`autofocus::metric`](crate::autofocus::metric)); [`FocusSearch::feed`] takes it and
 //! answers the next actuator code to command, or that the search is done, or
 //! that it failed and where to park the lens. Nothing blocks and nothing
-//! allocates: the search keeps its samples in a fixed-capacity array.
+//! allocates: the search keeps a fixed-size summary of its scan (best sample,
+//! neighbours, weakest metrics), updated in place on every frame.
 //!
 //! How it searches:
 //!
@@ -80,9 +81,8 @@ use crate::autofocus::focus::FocusSweepPlan;
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::scalar::Scalar;
-use heapless::Vec;
 
-/// Most samples one scan holds; bounds the coarse and fine scans' lengths.
+/// Most samples one scan takes; bounds the coarse and fine scans' lengths.
 pub const SCAN_CAPACITY: usize = 64;
 
 /// Largest actuator code magnitude accepted (keeps code arithmetic exact in `i32`).
@@ -401,28 +401,106 @@ enum ScanKind {
     Hint,
 }
 
-#[derive(Clone, Debug)]
+/// A scan, kept as what its decisions read instead of as its samples: the best
+/// sample (the first of equal ones) with its neighbours, the weakest metric
+/// before it, after it and overall, and the last two metrics. Each sample
+/// updates it in place in a few compares (a step moves no samples through the
+/// stack, and the whole search is about 200 bytes); the answers are those of
+/// the list of samples, which no decision needs.
+#[derive(Clone, Copy, Debug)]
 struct Scan {
     kind: ScanKind,
     next: i32,
     end: i32,
     step: i32,
-    samples: Vec<Sample, SCAN_CAPACITY>,
+    /// Samples taken, at most [`SCAN_CAPACITY`].
+    taken: u8,
+    /// Index of the best sample, and how many samples came after it.
+    best_at: u8,
+    after_best: u8,
+    best: Sample,
+    /// The samples just before (if `best_at > 0`) and after (if `after_best >
+    /// 0`) the best one.
+    left: Sample,
+    right: Sample,
+    /// Weakest metric before the best sample (if `best_at > 0`), after it (if
+    /// `after_best > 0`), and of the whole scan.
+    least_before: u64,
+    least_after: u64,
+    least: u64,
+    /// The last sample, and the metric of the one before it.
+    last: Sample,
+    last_but_one: u64,
 }
 
 impl Scan {
-    fn best(&self) -> Option<(usize, Sample)> {
-        let mut best: Option<(usize, Sample)> = None;
-        for (i, s) in self.samples.iter().enumerate() {
-            if best.is_none_or(|(_, b)| s.metric > b.metric) {
-                best = Some((i, *s));
-            }
+    fn new(kind: ScanKind, next: i32, end: i32, step: i32) -> Self {
+        let none = Sample { code: 0, metric: 0 };
+        Scan {
+            kind,
+            next,
+            end,
+            step,
+            taken: 0,
+            best_at: 0,
+            after_best: 0,
+            best: none,
+            left: none,
+            right: none,
+            least_before: 0,
+            least_after: 0,
+            least: 0,
+            last: none,
+            last_but_one: 0,
         }
-        best
     }
 
-    fn weakest(&self) -> u64 {
-        self.samples.iter().map(|s| s.metric).min().unwrap_or(0)
+    /// Takes a sample; `false` (and the sample is dropped) when the scan holds
+    /// [`SCAN_CAPACITY`] already.
+    fn push(&mut self, s: Sample) -> bool {
+        let n = self.taken;
+        if usize::from(n) >= SCAN_CAPACITY {
+            return false;
+        }
+        if n == 0 || s.metric > self.best.metric {
+            // Everything so far lies before the new best.
+            (self.best, self.best_at, self.after_best) = (s, n, 0);
+            (self.left, self.least_before) = (self.last, self.least);
+        } else {
+            if self.after_best == 0 {
+                (self.right, self.least_after) = (s, s.metric);
+            }
+            self.after_best += 1;
+            self.least_after = self.least_after.min(s.metric);
+        }
+        self.least = if n == 0 {
+            s.metric
+        } else {
+            self.least.min(s.metric)
+        };
+        (self.last_but_one, self.last) = (self.last.metric, s);
+        self.taken = n + 1;
+        true
+    }
+
+    fn best(&self) -> Option<Sample> {
+        (self.taken > 0).then_some(self.best)
+    }
+
+    fn left(&self) -> Option<Sample> {
+        (self.best_at > 0).then_some(self.left)
+    }
+
+    fn right(&self) -> Option<Sample> {
+        (self.after_best > 0).then_some(self.right)
+    }
+
+    fn least_before(&self) -> Option<u64> {
+        (self.best_at > 0).then_some(self.least_before)
+    }
+
+    fn least_after(&self) -> Option<u64> {
+        (self.after_best > 0).then_some(self.least_after)
     }
 }
 
@@ -435,8 +513,7 @@ struct Target {
 }
 
 /// Where the search is. The scan of `PreMove` and `Scanning` lives in
-/// [`FocusSearch`]'s `scan`, so that a step never moves its samples (about
-/// 1 KiB) through the stack.
+/// [`FocusSearch`]'s `scan` and is updated there in place.
 #[derive(Clone, Copy, Debug)]
 enum Phase {
     Idle,
@@ -513,13 +590,7 @@ impl<S: Scalar> FocusSearch<S> {
             drop_q16,
             confirm_q16,
             phase: Phase::Idle,
-            scan: Scan {
-                kind: ScanKind::Coarse,
-                next: 0,
-                end: 0,
-                step: 1,
-                samples: Vec::new(),
-            },
+            scan: Scan::new(ScanKind::Coarse, 0, 0, 1),
             frames: 0,
             last_command: None,
         })
@@ -631,18 +702,15 @@ impl<S: Scalar> FocusSearch<S> {
     }
 
     fn begin_full(&mut self) -> Step {
-        let c = self.config;
-        self.begin_scan(ScanKind::Coarse, c.code_min, c.code_max, c.coarse_step)
+        let c = &self.config;
+        let (lo, hi, step) = (c.code_min, c.code_max, c.coarse_step);
+        self.begin_scan(ScanKind::Coarse, lo, hi, step)
     }
 
     /// Starts a scan from `lo` to `hi`, with a pre-move below `lo` unless the lens
     /// is known to be below it already.
     fn begin_scan(&mut self, kind: ScanKind, lo: i32, hi: i32, step: i32) -> Step {
-        self.scan.kind = kind;
-        self.scan.next = lo;
-        self.scan.end = hi;
-        self.scan.step = step;
-        self.scan.samples.clear();
+        self.scan = Scan::new(kind, lo, hi, step);
         let pre = lo
             .saturating_sub(self.config.backlash_margin)
             .max(self.config.code_min);
@@ -657,71 +725,66 @@ impl<S: Scalar> FocusSearch<S> {
     }
 
     fn prominent(&self, scan: &Scan, best: u64) -> bool {
-        best >= self.config.min_peak_metric && below(scan.weakest(), self.flat_q16, best)
+        best >= self.config.min_peak_metric && below(scan.least, self.flat_q16, best)
     }
 
     fn on_sample(&mut self, metric: u64) -> Step {
         let code = self.scan.next;
-        let full = self.scan.samples.push(Sample { code, metric }).is_err();
+        let full = !self.scan.push(Sample { code, metric });
         let scan = &self.scan;
-        let passed_peak = match scan.best() {
-            Some((i, best)) => {
-                let after = scan.samples.get(i + 1..).unwrap_or(&[]);
-                after.len() >= 2
-                    && after
-                        .iter()
-                        .rev()
-                        .take(2)
-                        .all(|s| below(s.metric, self.drop_q16, best.metric))
-                    && (scan.kind != ScanKind::Coarse || self.prominent(scan, best.metric))
-            }
-            None => false,
-        };
+        // Passed: the last two samples come after the best and are both below
+        // `drop_ratio` of it.
+        let passed_peak = scan.after_best >= 2
+            && below(scan.last.metric, self.drop_q16, scan.best.metric)
+            && below(scan.last_but_one, self.drop_q16, scan.best.metric)
+            && (scan.kind != ScanKind::Coarse || self.prominent(scan, scan.best.metric));
         if !(full || passed_peak || scan.next >= scan.end) {
             let code = scan.next.saturating_add(scan.step).min(scan.end);
             self.scan.next = code;
             self.phase = Phase::Scanning;
             return Step::Move(code);
         }
-        let scan = &self.scan;
-        let Some((index, best)) = scan.best() else {
+        let Some(best) = self.scan.best() else {
             return self.begin_full();
         };
-        let c = self.config;
-        match scan.kind {
+        // What the decision reads (the scan is restarted below).
+        let scan = &self.scan;
+        let (kind, left, right) = (scan.kind, scan.left(), scan.right());
+        let (least_before, least_after) = (scan.least_before(), scan.least_after());
+        let c = &self.config;
+        let (code_min, code_max) = (c.code_min, c.code_max);
+        let (coarse_step, fine_step) = (c.coarse_step, c.fine_step);
+        let (park, min_peak) = (c.hyperfocal_code, c.min_peak_metric);
+        match kind {
             ScanKind::Coarse => {
-                if !self.prominent(scan, best.metric) {
+                if !self.prominent(&self.scan, best.metric) {
                     return Step::Failed(Failure {
                         reason: FailureReason::LowContrast,
-                        park_code: c.hyperfocal_code,
+                        park_code: park,
                         frames: self.frames,
                     });
                 }
                 self.park_code = best.code;
-                let lo = best.code.saturating_sub(c.coarse_step).max(c.code_min);
-                let hi = best.code.saturating_add(c.coarse_step).min(c.code_max);
-                self.begin_scan(ScanKind::Fine, lo, hi, c.fine_step)
+                let lo = best.code.saturating_sub(coarse_step).max(code_min);
+                let hi = best.code.saturating_add(coarse_step).min(code_max);
+                self.begin_scan(ScanKind::Fine, lo, hi, fine_step)
             }
             ScanKind::Fine | ScanKind::Hint => {
-                let hint = scan.kind == ScanKind::Hint;
+                let hint = kind == ScanKind::Hint;
                 // A hint window must show a real peak: strong enough, and falling
                 // below `flat_ratio` of it on both sides (a noisy bump on the
                 // curve's tail does not).
-                let falls = |side: &[Sample]| {
-                    side.iter()
-                        .any(|s| below(s.metric, self.flat_q16, best.metric))
+                let falls = |least: Option<u64>| {
+                    least.is_some_and(|m| below(m, self.flat_q16, best.metric))
                 };
-                let (before, after) = scan.samples.split_at(index.min(scan.samples.len()));
-                let bracketed = falls(before) && falls(after.get(1..).unwrap_or(&[]));
-                if hint && (best.metric < c.min_peak_metric || !bracketed) {
+                let bracketed = falls(least_before) && falls(least_after);
+                if hint && (best.metric < min_peak || !bracketed) {
                     return self.begin_full();
                 }
-                let left = index.checked_sub(1).and_then(|i| scan.samples.get(i));
-                let right = scan.samples.get(index + 1);
                 let (code, travel_end) = match (left, right) {
-                    (Some(l), Some(r)) => (self.interpolated(*l, best, *r), None),
-                    (None, _) if best.code == c.code_min => (best.code, Some(TravelEnd::Low)),
-                    (_, None) if best.code == c.code_max => (best.code, Some(TravelEnd::High)),
+                    (Some(l), Some(r)) => (self.interpolated(l, best, r), None),
+                    (None, _) if best.code == code_min => (best.code, Some(TravelEnd::Low)),
+                    (_, None) if best.code == code_max => (best.code, Some(TravelEnd::High)),
                     // Peak at the window's edge, inside travel: not bracketed.
                     _ if hint => return self.begin_full(),
                     _ => (best.code, None),
@@ -774,6 +837,66 @@ impl<S: Scalar> FocusSearch<S> {
         } else {
             self.phase = Phase::Confirm(target);
             Step::Move(target.code)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{SCAN_CAPACITY, Sample, Scan, ScanKind};
+
+    /// The summary against the list of samples it stands for: best (first of
+    /// equals), neighbours, weakest before, after and overall, last two, on
+    /// random scans with many ties, up to and past the capacity.
+    #[test]
+    fn summary_answers_as_the_list_of_samples() {
+        let mut x = 0x9E37_79B9u32;
+        let mut next = || {
+            x ^= x << 13;
+            x ^= x >> 17;
+            x ^= x << 5;
+            x
+        };
+        for round in 0..2000 {
+            let len = (next() as usize) % (SCAN_CAPACITY + 8);
+            let spread = [4u64, 50, u64::MAX][round % 3];
+            let mut scan = Scan::new(ScanKind::Fine, 0, 0, 1);
+            let mut list: [Sample; SCAN_CAPACITY] = [Sample { code: 0, metric: 0 }; SCAN_CAPACITY];
+            let mut n = 0;
+            for i in 0..len {
+                let metric = (u64::from(next()) << 32 | u64::from(next())) % spread.max(1);
+                let s = Sample {
+                    code: i as i32,
+                    metric,
+                };
+                assert_eq!(scan.push(s), n < SCAN_CAPACITY);
+                if n < SCAN_CAPACITY {
+                    list[n] = s;
+                    n += 1;
+                }
+            }
+            let list = &list[..n];
+            let best = list
+                .iter()
+                .enumerate()
+                .fold(None, |b: Option<(usize, Sample)>, (i, s)| match b {
+                    Some((_, t)) if s.metric <= t.metric => b,
+                    _ => Some((i, *s)),
+                });
+            assert_eq!(scan.best(), best.map(|(_, s)| s));
+            assert_eq!(usize::from(scan.taken), n);
+            let Some((i, _)) = best else { continue };
+            let least = |side: &[Sample]| side.iter().map(|s| s.metric).min();
+            assert_eq!(scan.left(), i.checked_sub(1).map(|j| list[j]));
+            assert_eq!(scan.right(), list.get(i + 1).copied());
+            assert_eq!(scan.least_before(), least(&list[..i]));
+            assert_eq!(scan.least_after(), least(&list[i + 1..]));
+            assert_eq!(Some(scan.least), least(list));
+            assert_eq!(usize::from(scan.after_best), n - 1 - i);
+            assert_eq!(scan.last, list[n - 1]);
+            if n >= 2 {
+                assert_eq!(scan.last_but_one, list[n - 2].metric);
+            }
         }
     }
 }

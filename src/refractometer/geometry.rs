@@ -56,9 +56,26 @@ pub struct Geometry<S> {
     axis: i32,
     /// tan β per [`POSITION_SCALE`] pixels: 64 · pitch / f.
     step: S,
+    /// tan β per pixel (pitch / f), signed by the direction: the slope's
+    /// constant factor.
+    per_px: S,
     sin_apex: S,
     cos_apex: S,
     reversed: bool,
+}
+
+/// The sample index a boundary position gives, with its sensitivities (for
+/// the reading's uncertainty): per pixel of the position and per unit of the
+/// prism's index.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct IndexAtPosition<S> {
+    /// Sample index, relative to the same reference as the prism's.
+    pub index: S,
+    /// ∂index/∂position, per pixel.
+    pub per_pixel: S,
+    /// ∂index/∂(prism index).
+    pub per_prism_index: S,
 }
 
 /// Checks a number of a design description: finite and within `[lo, hi]`.
@@ -82,11 +99,14 @@ impl<S: Scalar> Geometry<S> {
         // sin A and cos A in the number type: a fixed-point firmware links no
         // soft-float trigonometry for its one-time set-up.
         let apex = S::from_f64(apex)?;
+        let step = S::from_f64(f64::from(POSITION_SCALE) * pitch * 1e-3 / f)?;
+        let per_px = step.div(S::from_i32(POSITION_SCALE)?)?;
         Ok(Geometry {
             // axis ≥ 0: adding ½ and truncating rounds like `round`, and folds
             // to a constant for a `const` description (no soft float at run time).
             axis: (axis * f64::from(SUBPIXEL) + 0.5) as i32,
-            step: S::from_f64(f64::from(POSITION_SCALE) * pitch * 1e-3 / f)?,
+            step,
+            per_px: if d.reversed { per_px.neg()? } else { per_px },
             sin_apex: apex.sin()?,
             cos_apex: apex.cos()?,
             reversed: d.reversed,
@@ -101,7 +121,9 @@ impl<S: Scalar> Geometry<S> {
         } else {
             offset
         };
-        let t = S::from_ratio(offset, SUBPIXEL * POSITION_SCALE)?.mul(self.step)?;
+        // SUBPIXEL · POSITION_SCALE = 2^22: a shift, not a division.
+        const _: () = assert!(SUBPIXEL * POSITION_SCALE == 1 << 22);
+        let t = S::from_ratio_pow2(offset, 22)?.mul(self.step)?;
         let cos_beta = S::ONE.div(S::ONE.add(t.square()?)?.sqrt()?)?;
         Ok((t, t.mul(cos_beta)?, cos_beta))
     }
@@ -135,6 +157,15 @@ impl<S: Scalar> Geometry<S> {
     /// Sample index and its derivative with respect to the boundary position
     /// (index per pixel), for uncertainty propagation.
     pub fn sample_index_and_slope(&self, position: i32, n_prism: S) -> Result<(S, S), Error> {
+        let at = self.index_at(position, n_prism)?;
+        Ok((at.index, at.per_pixel))
+    }
+
+    /// Sample index for a boundary at `position` (1/65536 px) with the prism
+    /// index `n_prism`, and both sensitivities. Two square roots (cos β and
+    /// the refracted ray's cosine in the prism) and one division (its
+    /// reciprocal, shared by both sensitivities); the rest multiplications.
+    pub fn index_at(&self, position: i32, n_prism: S) -> Result<IndexAtPosition<S>, Error> {
         let n_p = check_index(n_prism)?;
         let (_, sin_beta, cos_beta) = self.exit_ray(position)?;
         let root = n_p.square()?.sub(sin_beta.square()?)?.sqrt()?;
@@ -151,12 +182,22 @@ impl<S: Scalar> Geometry<S> {
         if n < S::ONE {
             return Err(Error::OutOfRange(Quantity::RefractiveIndex));
         }
+        // root ≥ cos A·root > sin A·sin β ≥ 0 here, and root ≤ n_p < 128.
+        let per_root = S::ONE.div(root)?;
         // dn/dsinβ · dsinβ/dt · dt/dpx, with dsinβ/dt = cos³β.
-        let dn_ds = self.cos_apex.sub(self.sin_apex.mul(sin_beta)?.div(root)?)?;
-        let per_px = self.step.div(S::from_i32(POSITION_SCALE)?)?;
-        let slope = dn_ds.mul(cos_beta.square()?.mul(cos_beta)?)?.mul(per_px)?;
-        let slope = if self.reversed { slope.neg()? } else { slope };
-        Ok((n, slope))
+        let dn_ds = self
+            .cos_apex
+            .sub(self.sin_apex.mul(sin_beta)?.mul(per_root)?)?;
+        let per_pixel = dn_ds
+            .mul(cos_beta.square()?.mul(cos_beta)?)?
+            .mul(self.per_px)?;
+        // ∂n/∂n_p = sin A · n_p / root.
+        let per_prism_index = self.sin_apex.mul(n_p)?.mul(per_root)?;
+        Ok(IndexAtPosition {
+            index: n,
+            per_pixel,
+            per_prism_index,
+        })
     }
 }
 

@@ -12,12 +12,18 @@
 //! the boundary position's noise (shrinking with the frames averaged), the
 //! temperature sensor's standard uncertainty (through the whole chain: prism
 //! index and sample compensation) and the calibration's standard uncertainty.
-//! Sensitivities come from the chain itself: analytic for the geometry,
-//! one-sided differences for the models behind the traits (+1e-4 in index,
-//! +0.5 K; the step below at the top of a model's range). Their cost: a reading
-//! runs the dispersion and the sample compensation three times and the prism
-//! and geometry twice, against once each for the value alone (see
-//! `docs/cost.md`, `frame -> %Brix reading` against its parts).
+//! Sensitivities come from the chain itself, in one pass: the geometry gives
+//! the index with its slopes per pixel and per unit of prism index, the
+//! calibration and dispersion their own slopes, and the sample compensation its
+//! slopes per nD and per kelvin ([`SampleCompensation::compensate`]: analytic
+//! for sucrose, one-sided differences for models that do not override it).
+//!
+//! Work that depends only on the instrument's state is done when that state
+//! changes: the dispersion's refractivity ratio at the LED once at
+//! construction, the prism's index at the LED once per whole degree of
+//! temperature drift (a reading takes the line through it). A %Brix reading
+//! stays in the %Brix domain: one table inversion, no conversion back from nD
+//! at 20 °C. Costs in `docs/cost.md`.
 //!
 //! Number types: f32, f64 and I32F32 run the whole chain from the same code;
 //! the LED wavelength is carried in µm inside (the unit of [`Medium`] and
@@ -133,7 +139,9 @@ use crate::media::Medium;
 use crate::optics::refraction::check_index;
 use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
 use crate::refractometer::calibration::{self, Standard};
-use crate::refractometer::geometry::{Correction, Geometry, GeometryDescription, check_described};
+use crate::refractometer::geometry::{
+    Correction, Geometry, GeometryDescription, IndexAtPosition, check_described,
+};
 use crate::refractometer::record::{CalibrationRecord, SlotChoice};
 use crate::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
 use crate::scalar::Scalar;
@@ -222,7 +230,12 @@ pub struct Instrument<S, P, W, C, T> {
     wavelength: S, // LED centre wavelength, µm
     led_pm: u32,   // the same, pm, as the calibration record keeps it
     prism: P,
+    /// The prism at the LED wavelength near the last temperature read:
+    /// (whole °C, index there, index per kelvin).
+    prism_near: Option<(i32, S, S)>,
     dispersion: W,
+    /// `r` of `nD − 1 = (n − 1)·r` at the LED, when the model has that form.
+    dispersion_ratio: Option<S>,
     compensation: C,
     scale: T,
     correction: Correction<S>,
@@ -275,6 +288,8 @@ where
             return Err(Error::OutOfRange(Quantity::Value));
         }
         let wavelength = described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?;
+        // A model that refuses the LED here would refuse every reading.
+        let dispersion_ratio = dispersion.refractivity_ratio(wavelength)?;
         Ok(Instrument {
             geometry: Geometry::new(&d.geometry)?,
             boundary: d.boundary,
@@ -282,7 +297,9 @@ where
             // Checked above: 300 000 to 1 100 000 pm.
             led_pm: libm::round(d.led_wavelength_nm * 1000.0) as u32,
             prism,
+            prism_near: None,
             dispersion,
+            dispersion_ratio,
             compensation,
             scale,
             correction: Correction::identity(),
@@ -452,67 +469,104 @@ where
         }
     }
 
+    /// The prism's index at the LED wavelength and `t`, and its change per
+    /// kelvin: the model is evaluated at the nearest whole degree (and one
+    /// degree up, or down at the top of its range) only when that degree
+    /// changes, and a reading takes the line through them. Temperature moves
+    /// slowly: the model runs about once per degree of drift, not per reading.
+    /// Exact for a prism linear in T (every [`Glass`](crate::media::glass::Glass));
+    /// otherwise within ½·|d²n/dT²|·(1 K)² of the model. A function of `t`
+    /// alone (not of the readings before), so calibration and readings agree.
+    fn prism_at(&mut self, t: S) -> Result<(S, S), Error> {
+        let whole = t.round_to_i32()?;
+        let (n0, per_kelvin) = match self.prism_near {
+            Some((at, n0, k)) if at == whole => (n0, k),
+            _ => {
+                let t0 = S::from_i32(whole)?;
+                let n0 = self.prism.index(self.wavelength, t0)?;
+                let k = match self.prism.index(self.wavelength, t0.add(S::ONE)?) {
+                    Ok(up) => up.sub(n0)?,
+                    Err(_) => n0.sub(self.prism.index(self.wavelength, t0.sub(S::ONE)?)?)?,
+                };
+                self.prism_near = Some((whole, n0, k));
+                (n0, k)
+            }
+        };
+        let n = n0.add(per_kelvin.mul(t.sub(S::from_i32(whole)?)?)?)?;
+        Ok((n, per_kelvin))
+    }
+
     /// Index the geometry gives for a position at a temperature, uncorrected,
-    /// with its derivative per pixel.
-    fn raw_index(&self, position: i32, temperature_c: S) -> Result<(S, S), Error> {
-        let n_p = self.prism.index(self.wavelength, temperature_c)?;
-        self.geometry.sample_index_and_slope(position, n_p)
+    /// with its sensitivities, and the prism's index change per kelvin.
+    fn raw_index(
+        &mut self,
+        position: i32,
+        temperature_c: S,
+    ) -> Result<(IndexAtPosition<S>, S), Error> {
+        let (n_p, prism_per_kelvin) = self.prism_at(temperature_c)?;
+        Ok((self.geometry.index_at(position, n_p)?, prism_per_kelvin))
     }
 
-    /// nD at 20 °C from the corrected index at the LED wavelength.
-    fn to_nd20(&self, index_at_led: S, temperature_c: S) -> Result<(S, S), Error> {
+    /// nD from the corrected index at the LED wavelength, and dnD/dn.
+    fn to_nd(&self, index_at_led: S) -> Result<(S, S), Error> {
+        if let Some(r) = self.dispersion_ratio {
+            let nd = check_index(index_at_led.sub(S::ONE)?.mul(r)?.add(S::ONE)?)?;
+            return Ok((nd, r));
+        }
         let nd = self.dispersion.to_nd(index_at_led, self.wavelength)?;
-        let nd20 = self.compensation.to_reference(nd, temperature_c)?;
-        Ok((nd, nd20))
-    }
-
-    /// nD at 20 °C for a position and temperature through the whole chain.
-    fn chain(&self, position: i32, temperature_c: S) -> Result<S, Error> {
-        let (raw, _) = self.raw_index(position, temperature_c)?;
-        Ok(self.to_nd20(self.correction.apply(raw)?, temperature_c)?.1)
+        let h = crate::lit!(S, 1e-4);
+        let slope = match self.dispersion.to_nd(index_at_led.add(h)?, self.wavelength) {
+            Ok(up) => up.sub(nd)?,
+            Err(_) => nd.sub(
+                self.dispersion
+                    .to_nd(index_at_led.sub(h)?, self.wavelength)?,
+            )?,
+        }
+        .div(h)?;
+        Ok((nd, slope))
     }
 
     /// Runs an average through the chain: index, nD, nD at 20 °C, scale value,
     /// uncertainty; updates the settling window. Fails when the chain itself
     /// does (geometry, compensation range); a scale error stays inside the
     /// reading, in [`Reading::scale_value`].
+    ///
+    /// One pass: the geometry gives the index with its sensitivities (per
+    /// pixel, per unit of prism index), the dispersion and correction their
+    /// slopes, the compensation its own ([`SampleCompensation::compensate`]),
+    /// and a scale defined in the compensation's domain (%Brix) reads the
+    /// value from it without converting back from nD.
     pub fn read(&mut self, avg: &Averaged<S>) -> Result<Reading<S>, Error> {
         let t = avg.temperature_c;
-        let (raw, per_px) = self.raw_index(avg.position, t)?;
+        let (at, prism_per_kelvin) = self.raw_index(avg.position, t)?;
+        let raw = at.index;
         let index_at_led = self.correction.apply(raw)?;
-        let (nd, nd20) = self.to_nd20(index_at_led, t)?;
-        let nd20 = check_index(nd20)?;
+        let (nd, nd_per_led) = self.to_nd(index_at_led)?;
+        let compensated = self.compensation.compensate(nd, t)?;
+        let nd20 = check_index(compensated.nd20)?;
         // Not `?`: a value off the scale does not cost the reading.
-        let scale_value = self.scale.value_at(nd20);
+        let scale_value = match compensated
+            .in_domain
+            .and_then(|(domain, v)| self.scale.value_in(domain, v))
+        {
+            Some(v) => v,
+            None => self.scale.value_at(nd20),
+        };
 
-        // Sensitivities: nD20 per index at the LED, per pixel (analytic
-        // geometry × correction slope × that), per kelvin (the whole chain,
-        // prism included). One-sided differences from the reading itself: the
-        // curves are smooth on these steps, and each extra point costs a pass
-        // through the compensation (a table inversion for %Brix-based ones).
-        let h = crate::lit!(S, 1e-4);
-        let d_led = match self.to_nd20(index_at_led.add(h)?, t) {
-            Ok((_, up)) => up.sub(nd20)?,
-            // At the top of the compensation's range: the step below.
-            Err(_) => nd20.sub(self.to_nd20(index_at_led.sub(h)?, t)?.1)?,
-        }
-        .div(h)?;
-        let d_px = per_px.mul(self.correction.slope(raw)?)?.mul(d_led)?;
-        let u_px = S::from_ratio(avg.position_uncertainty, SUBPIXEL)?;
-        let term_px = d_px.mul(u_px)?.abs()?;
-        // Within 0.5 K of an end of the compensation's range (or of a ragged
-        // table's edge) the step above is out of range: the step below there,
-        // so that a reading the models cover is never refused for its
-        // uncertainty.
-        let ht = crate::lit!(S, 0.5);
-        let per_kelvin = match self.chain(avg.position, t.add(ht)?) {
-            Ok(w) => w.sub(nd20)?,
-            Err(e) => match self.chain(avg.position, t.sub(ht)?) {
-                Ok(c) => nd20.sub(c)?,
-                Err(_) => return Err(e),
-            },
-        }
-        .mul(S::TWO)?;
+        // Sensitivities of nD20, first order: per unit of the uncorrected
+        // index, then per pixel and per kelvin (the prism through the
+        // geometry, and the sample's own compensation).
+        let per_raw = compensated
+            .per_nd
+            .mul(nd_per_led)?
+            .mul(self.correction.slope(raw)?)?;
+        const _: () = assert!(SUBPIXEL == 1 << 16);
+        let u_px = S::from_ratio_pow2(avg.position_uncertainty, 16)?;
+        let term_px = per_raw.mul(at.per_pixel)?.mul(u_px)?.abs()?;
+        let per_kelvin = per_raw
+            .mul(at.per_prism_index)?
+            .mul(prism_per_kelvin)?
+            .add(compensated.per_kelvin)?;
         let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
         let uncertainty = root_sum_square(term_px, term_t, self.u_calibration)?;
 
@@ -560,7 +614,7 @@ where
         avg: &Averaged<S>,
         water: &M,
     ) -> Result<Correction<S>, Error> {
-        let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
+        let measured = self.raw_index(avg.position, avg.temperature_c)?.0.index;
         let reference = calibration::water_reference(water, self.wavelength, avg.temperature_c)?;
         let standard = Standard {
             measured,
@@ -593,7 +647,7 @@ where
     {
         let missing = Error::OutOfRange(Quantity::RefractiveIndex);
         let zero = self.standards[0].ok_or(missing)?;
-        let (measured, _) = self.raw_index(avg.position, avg.temperature_c)?;
+        let measured = self.raw_index(avg.position, avg.temperature_c)?.0.index;
         let reference = calibration::standard_reference(
             nd20,
             dispersion,
@@ -637,6 +691,21 @@ fn root_sum_square<S: Scalar>(a: S, b: S, c: S) -> Result<S, Error> {
     if m == S::ZERO {
         return Ok(S::ZERO);
     }
+    // The usual case, terms from 1e-5 to 0.01 nD: scaled by 2^10 (exact, and
+    // a multiplication), the squares stay inside I8F24 (≤ 105) and keep the
+    // largest one's digits; no division.
+    if m >= crate::lit!(S, 1e-5) && m <= crate::lit!(S, 0.01) {
+        // ×32 twice: 1024 itself does not fit I8F24.
+        let up = |x: S| x.mul(crate::lit!(S, 32.0))?.mul(crate::lit!(S, 32.0));
+        let sum = up(a)?
+            .square()?
+            .add(up(b)?.square()?)?
+            .add(up(c)?.square()?)?;
+        let down = crate::lit!(S, 1.0 / 32.0);
+        return sum.sqrt()?.mul(down)?.mul(down);
+    }
+    // Divisions, not a reciprocal: 1/m of an uncertainty in nD (1e-5) does
+    // not fit I8F24.
     let sum = a
         .div(m)?
         .square()?

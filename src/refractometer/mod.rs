@@ -22,6 +22,16 @@ use crate::scalar::Scalar;
 pub trait WavelengthCorrection<S: Scalar> {
     /// nD of a sample whose index at vacuum wavelength `wavelength_um` (µm) is `n`.
     fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error>;
+
+    /// `r` such that `nD − 1 = (n − 1)·r` for every `n` at `wavelength_um`,
+    /// when the model has that form (a scaled refractivity: the water-like and
+    /// Abbe models): an instrument with a fixed LED works it out once and a
+    /// reading costs one multiplication. `None` (the default): the model is
+    /// called on every reading.
+    fn refractivity_ratio(&self, wavelength_um: S) -> Result<Option<S>, Error> {
+        let _ = wavelength_um;
+        Ok(None)
+    }
 }
 
 /// Brings a sample's nD at its measured temperature to the reference temperature
@@ -30,6 +40,63 @@ pub trait SampleCompensation<S: Scalar> {
     /// nD at 20 °C of a sample whose nD at `temperature_c` is `nd`. Outside the
     /// model's compensation range: an error, never an extrapolation.
     fn to_reference(&self, nd: S, temperature_c: S) -> Result<S, Error>;
+
+    /// [`to_reference`](Self::to_reference) with its sensitivities, and the
+    /// value in the model's own domain where it has one (%Brix for sucrose):
+    /// what a reading needs, in one pass.
+    ///
+    /// The default takes the sensitivities by one-sided differences (+1e-4 in
+    /// nD, +0.5 K; the step below at the top of the model's range): three
+    /// passes through the model. Models with an analytic slope override it.
+    fn compensate(&self, nd: S, temperature_c: S) -> Result<Compensated<S>, Error> {
+        let nd20 = self.to_reference(nd, temperature_c)?;
+        let h = crate::lit!(S, 1e-4);
+        let per_nd = match self.to_reference(nd.add(h)?, temperature_c) {
+            Ok(up) => up.sub(nd20)?,
+            Err(_) => nd20.sub(self.to_reference(nd.sub(h)?, temperature_c)?)?,
+        }
+        .div(h)?;
+        let ht = crate::lit!(S, 0.5);
+        let per_kelvin = match self.to_reference(nd, temperature_c.add(ht)?) {
+            Ok(w) => w.sub(nd20)?,
+            Err(e) => match self.to_reference(nd, temperature_c.sub(ht)?) {
+                Ok(c) => nd20.sub(c)?,
+                Err(_) => return Err(e),
+            },
+        }
+        .mul(S::TWO)?;
+        Ok(Compensated {
+            nd20,
+            per_nd,
+            per_kelvin,
+            in_domain: None,
+        })
+    }
+}
+
+/// A sample model's own domain, where a compensation may work and a scale read
+/// directly (so that a %Brix reading is not converted to nD at 20 °C and back).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum SampleDomain {
+    /// %Brix on the ICUMSA sucrose scale ([`scales::SucroseBrix`]).
+    SucroseBrix,
+}
+
+/// A compensated reading: nD at 20 °C, its sensitivities, and the value in the
+/// model's domain at 20 °C when the model works in one.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Compensated<S> {
+    /// nD at 20 °C.
+    pub nd20: S,
+    /// ∂nD20/∂nD at the sample temperature.
+    pub per_nd: S,
+    /// ∂nD20/∂T at fixed nD, per kelvin.
+    pub per_kelvin: S,
+    /// The value at 20 °C in the model's domain, if it has one.
+    pub in_domain: Option<(SampleDomain, S)>,
 }
 
 /// A trade scale read from nD at 20 °C, relative to air.
@@ -40,6 +107,16 @@ pub trait TradeScale<S: Scalar> {
     fn nd20_at(&self, value: S) -> Result<S, Error>;
     /// Unit, for display (`"%Brix"`, `"g/kg"`, ...).
     fn unit(&self) -> &'static str;
+
+    /// The scale value from a value in a sample domain, where the scale is
+    /// defined in that domain (%Brix from %Brix): the same value
+    /// [`value_at`](Self::value_at) gives for the matching nD at 20 °C, with
+    /// the same range rules, without the table inversion. `None` (the
+    /// default): the scale reads nD at 20 °C.
+    fn value_in(&self, domain: SampleDomain, value: S) -> Option<Result<S, Error>> {
+        let _ = (domain, value);
+        None
+    }
 }
 
 pub mod boundary;

@@ -24,8 +24,8 @@
 //! assert!((brix.to_num::<f64>() - 10.0).abs() < 0.005);
 //! ```
 
-use super::TradeScale;
 use super::table::{LinearTable, UniformCubicTable};
+use super::{SampleDomain, TradeScale};
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::scalar::Scalar;
@@ -121,6 +121,35 @@ impl<S: Scalar> TradeScale<S> for SucroseBrix {
     fn unit(&self) -> &'static str {
         "%Brix"
     }
+    /// %Brix from %Brix: the range of [`value_at`](TradeScale::value_at)
+    /// (down to the band below water, up to 85).
+    fn value_in(&self, domain: SampleDomain, value: S) -> Option<Result<S, Error>> {
+        match domain {
+            SampleDomain::SucroseBrix => Some(value.check_range(
+                Quantity::ScaleValue,
+                lit!(S, -BELOW_WATER_BAND_BRIX),
+                lit!(S, 85.0),
+            )),
+        }
+    }
+}
+
+/// dnD/d%Brix of the sucrose table near `brix`: the chord of its 5 %Brix cell
+/// (for sensitivities; within 2 % of the cubic's tangent, the slope changing
+/// by under 4 % across a cell). No division: the entries' difference over
+/// 2^10 times a constant.
+pub(crate) fn sucrose_slope<S: Scalar>(brix: S) -> Result<S, Error> {
+    let cells = ICUMSA_SUCROSE.ys.len() - 1;
+    let k = usize::try_from(brix.round_to_i32()?.max(0) / ICUMSA_SUCROSE.step)
+        .unwrap_or(0)
+        .min(cells - 1);
+    let (Some(lo), Some(hi)) = (ICUMSA_SUCROSE.ys.get(k), ICUMSA_SUCROSE.ys.get(k + 1)) else {
+        return Err(Error::OutOfRange(Quantity::ScaleValue));
+    };
+    S::from_ratio_pow2(hi - lo, 10)?.mul(lit!(
+        S,
+        1024.0 / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
+    ))
 }
 
 /// Salinity of seawater, ‰ (practical salinity, ≈ g/kg), 0–43 ‰.

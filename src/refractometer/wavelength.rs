@@ -123,11 +123,20 @@ impl<S: Scalar> WavelengthCorrection<S> for WaterLikeAtLed<S> {
         let n = check_index(n)?;
         check_index(n.sub(S::ONE)?.mul(self.ratio)?.add(S::ONE)?)
     }
+    fn refractivity_ratio(&self, wavelength_um: S) -> Result<Option<S>, Error> {
+        if wavelength_um == self.wavelength_um {
+            return Ok(Some(self.ratio));
+        }
+        WaterLikeDispersion.refractivity_ratio(wavelength_um)
+    }
 }
 
 impl<S: Scalar> WavelengthCorrection<S> for WaterLikeDispersion {
     fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         self.to_nd_um(n, wavelength_um)
+    }
+    fn refractivity_ratio(&self, wavelength_um: S) -> Result<Option<S>, Error> {
+        Ok(Some(water_ratio(check_led_um(wavelength_um)?)?))
     }
 }
 
@@ -174,25 +183,31 @@ impl<S: Scalar> WavelengthCorrection<S> for AbbeDispersion<S> {
     fn to_nd(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         self.to_nd_um(n, wavelength_um)
     }
+    /// `nD − 1 = (n − 1)/(1 + q)`, the form [`to_nd_um`](Self::to_nd_um)
+    /// takes multiplied out.
+    fn refractivity_ratio(&self, wavelength_um: S) -> Result<Option<S>, Error> {
+        let q = self.shift(check_led_um(wavelength_um)?)?;
+        Ok(Some(S::ONE.div(S::ONE.add(q)?)?))
+    }
 }
 
 impl<S: Scalar> AbbeDispersion<S> {
     /// [`WavelengthCorrection::to_nd`] with the wavelength in µm (fits I8F24).
     pub fn to_nd_um(&self, n: S, wavelength_um: S) -> Result<S, Error> {
         let n = check_index(n)?;
-        let l = check_led_um(wavelength_um)?;
+        let q = self.shift(check_led_um(wavelength_um)?)?;
+        check_index(n.add(q)?.div(S::ONE.add(q)?)?)
+    }
+
+    /// `q = (λ⁻² − λD⁻²) / (Vd (λF⁻² − λC⁻²))` for a checked wavelength, µm.
+    fn shift(&self, l: S) -> Result<S, Error> {
         let inv_d = crate::lit!(S, 1.0 / ((ND_NM / 1000.0) * (ND_NM / 1000.0)));
         let span = crate::lit!(
             S,
             1.0 / ((LINE_F_NM / 1000.0) * (LINE_F_NM / 1000.0))
                 - 1.0 / ((LINE_C_NM / 1000.0) * (LINE_C_NM / 1000.0))
         );
-        // q = (λ⁻² − λD⁻²) / (Vd (λF⁻² − λC⁻²));  nD = (n + q)/(1 + q)
-        let q = S::ONE
-            .div(l.square()?)?
-            .sub(inv_d)?
-            .div(span)?
-            .div(self.vd)?;
-        check_index(n.add(q)?.div(S::ONE.add(q)?)?)
+        // nD = (n + q)/(1 + q)
+        S::ONE.div(l.square()?)?.sub(inv_d)?.div(span)?.div(self.vd)
     }
 }

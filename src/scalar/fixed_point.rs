@@ -74,6 +74,24 @@ macro_rules! fixed_scalar {
                 let q = (2 * n + d.signum() * n.signum() * d.abs()) / (2 * d);
                 narrow(q)
             }
+            fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error> {
+                if log2_den > 31 {
+                    return Err(Error::OutOfRange(crate::Quantity::Value));
+                }
+                // |num| < 2^31 and the shift up is at most 32: fits i64.
+                let up = $frac - log2_den as i32;
+                let bits = if up >= 0 {
+                    i64::from(num) << up
+                } else {
+                    // Rounded to nearest, ties away from zero (as from_ratio).
+                    let down = up.unsigned_abs();
+                    let m = (i64::from(num).abs() + (1i64 << (down - 1))) >> down;
+                    if num < 0 { -m } else { m }
+                };
+                <$inner>::try_from(bits)
+                    .map(<$t>::from_bits)
+                    .map_err(|_| Error::Overflow)
+            }
             fn round_to_i32(self) -> Result<i32, Error> {
                 self.checked_round()
                     .and_then(|r| r.checked_to_num::<i32>())
@@ -89,6 +107,16 @@ macro_rules! fixed_scalar {
             }
             #[inline]
             fn mul(self, rhs: Self) -> Result<Self, Error> {
+                if $total == 32 {
+                    // The `fixed` crate's product (rounded toward −∞) from one
+                    // 32×32→64 multiplication, which cannot overflow: its
+                    // checked form pays for a 64-bit overflow test, about 150
+                    // instructions on a Cortex-M0.
+                    let p = (self.to_bits() as i64).wrapping_mul(rhs.to_bits() as i64);
+                    return <$inner>::try_from(p >> $frac)
+                        .map(<$t>::from_bits)
+                        .map_err(|_| Error::Overflow);
+                }
                 self.checked_mul(rhs).ok_or(Error::Overflow)
             }
             #[inline]
@@ -112,6 +140,12 @@ macro_rules! fixed_scalar {
                     return Err(Error::MathDomain);
                 }
                 // sqrt(b / 2^f) * 2^f = sqrt(b * 2^f); two extra bits round to nearest.
+                // In 64 bits where the shifted value fits (I8F24): a 128-bit
+                // root costs a core without 64-bit hardware far more.
+                if $total + $frac + 2 <= 64 {
+                    let wide = (self.to_bits() as u64) << ($frac + 2);
+                    return narrow(i128::from((wide.isqrt() + 1) >> 1));
+                }
                 let wide = (self.to_bits() as u128) << ($frac + 2);
                 let r = (wide.isqrt() + 1) >> 1;
                 narrow(r as i128)

@@ -46,6 +46,13 @@ macro_rules! float_scalar {
             fn from_ratio(num: i32, den: i32) -> Result<Self, Error> {
                 (num as $t).div(den as $t)
             }
+            fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error> {
+                if log2_den > 31 {
+                    return Err(Error::OutOfRange(crate::Quantity::Value));
+                }
+                // One rounding (of `num`), then an exact power-of-two scaling.
+                finite(num as $t * (1.0 / (1u64 << log2_den) as $t))
+            }
             fn round_to_i32(self) -> Result<i32, Error> {
                 let r = $m::round(self);
                 if r.is_finite() && r >= i32::MIN as $t && r <= i32::MAX as $t {

@@ -337,6 +337,9 @@ fn emit_focus<S: Scalar>(out: &mut String, name: &str, ty: &str, bits: impl Fn(S
     )
     .unwrap();
     writeln!(out, "pub const FOCUS_STEPS_{name}: usize = {};", m.len()).unwrap();
+    let lens = embedded_optics::autofocus::sim::LensModel::<S>::phone_module();
+    let park = chains::focus_config(&lens).unwrap().hyperfocal_code;
+    writeln!(out, "pub const FOCUS_PARK_{name}: i32 = {park};").unwrap();
 }
 
 fn chain_tables(out: &mut String) {

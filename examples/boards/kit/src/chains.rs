@@ -209,9 +209,14 @@ pub type FocusOut = Result<[i32; 5], Error>;
 
 /// The search settings for the simulated module.
 pub fn focus_config<S: Scalar>(lens: &LensModel<S>) -> Result<SearchConfig<S>, Error> {
-    let mut c = SearchConfig::typical(0, lens.code_max, lens.hyperfocal_code()?);
+    Ok(search_config(lens.code_max, lens.hyperfocal_code()?))
+}
+
+/// The search settings for a travel of `0..=code_max` and a park code.
+pub fn search_config<S: Scalar>(code_max: i32, park_code: i32) -> SearchConfig<S> {
+    let mut c = SearchConfig::typical(0, code_max, park_code);
     c.min_peak_metric = 262;
-    Ok(c)
+    c
 }
 
 /// Runs the contrast search against the simulated module through the actuator

@@ -255,10 +255,17 @@ pub fn frame_to_brix<S: Tabled>(i: usize) {
 /// it (boundary found, averaged): what a reading starts from.
 fn conversion_setup_reading<S: Tabled>(
     i: usize,
-) -> Option<(Refractometer<S>, embedded_optics::refractometer::instrument::Averaged<S>)> {
+) -> Option<(
+    Refractometer<S>,
+    embedded_optics::refractometer::instrument::Averaged<S>,
+)> {
     let mut inst: Refractometer<S> = chains::refractometer::<S>().ok()?;
     let (f, t) = chain_input::<S>(i);
     let avg = inst.feed(f, t).ok()??;
+    // One reading before: the instrument's state at this temperature (the
+    // prism near it) is in place, as it is on every reading but the first
+    // after a degree of drift.
+    black_box(inst.read(&avg).ok());
     Some((inst, avg))
 }
 
@@ -310,10 +317,9 @@ pub fn hand_written_brix(i: usize) {
     let [c0, c1, c2, c3] = HAND_CUBIC;
     let n_led = c0 + p * (c1 + p * (c2 + p * c3));
     let nd = n_led + HAND_DISPERSION;
-    let brix_t = ((((11758.74 * nd - 88885.21) * nd + 270177.93) * nd - 413145.80) * nd
-        + 318417.95)
-        * nd
-        - 99127.4536;
+    let brix_t =
+        ((((11758.74 * nd - 88885.21) * nd + 270177.93) * nd - 413145.80) * nd + 318417.95) * nd
+            - 99127.4536;
     // Cell and weights on the uniform grid (clamped to the table).
     let ft = ((t - 8.0) * (1.0 / 3.0)).clamp(0.0, 3.999);
     let fb = ((brix_t - 10.0) * 0.2).clamp(0.0, 3.999);
@@ -386,24 +392,28 @@ impl I2c for NullBus {
     }
 }
 
-/// Base of [`search_steps`]: search, driver and the first move.
-fn search_setup<S: Tabled>() -> Option<(
-    FocusSearch<S>,
-    FocusActuatorDriver<NullBus, chains::CountingDelay>,
-    Step,
-)> {
-    let lens = LensModel::<S>::phone_module();
-    let mut search = FocusSearch::new(chains::focus_config(&lens).ok()?).ok()?;
-    let driver =
-        FocusActuatorDriver::new(NullBus, chains::CountingDelay { ns: 0 }, LAYOUT, MOTION).ok()?;
-    let step = search.start();
-    Some((search, driver, step))
+/// The search of [`search_steps`], built in the caller's frame. The settings'
+/// park code comes from the host (the lens model that gives it is set-up, whose
+/// stack the closed-loop item shows), so that the item's stack is the search's.
+fn search<S: Tabled>() -> Option<FocusSearch<S>> {
+    let code_max = LensModel::<S>::phone_module().code_max;
+    FocusSearch::new(chains::search_config(code_max, S::FOCUS_PARK)).ok()
 }
 
-/// Base of [`search_steps`].
+/// The driver of [`search_steps`], on a bus that takes every write.
+fn null_driver() -> Option<FocusActuatorDriver<NullBus, chains::CountingDelay>> {
+    FocusActuatorDriver::new(NullBus, chains::CountingDelay { ns: 0 }, LAYOUT, MOTION).ok()
+}
+
+/// Base of [`search_steps`]: search, driver and the first move.
 pub fn search_steps_base<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
-    black_box(search_setup::<S>().map(|(_, _, s)| s));
+    let (mut search, driver) = (search::<S>(), null_driver());
+    let (Some(search), Some(driver)) = (search.as_mut(), driver.as_ref()) else {
+        return;
+    };
+    black_box(driver);
+    black_box(search.start());
 }
 
 /// A whole contrast search replayed from the metrics the host's run saw: per
@@ -411,9 +421,12 @@ pub fn search_steps_base<S: Tabled>(i: usize) {
 /// (`units`: the run's steps).
 pub fn search_steps<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
-    let Some((mut search, mut driver, mut step)) = search_setup::<S>() else {
+    // Held where they are built; a step updates them in place.
+    let (mut search, mut driver) = (search::<S>(), null_driver());
+    let (Some(search), Some(driver)) = (search.as_mut(), driver.as_mut()) else {
         return;
     };
+    let mut step = search.start();
     for &m in S::focus_metrics() {
         if let Step::Move(code) = step {
             black_box(driver.move_to(u16::try_from(code).unwrap_or(0)).is_ok());

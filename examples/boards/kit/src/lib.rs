@@ -56,6 +56,9 @@ pub trait Tabled: Scalar {
     fn focus_expected() -> &'static [chains::FocusOut; SUBJECTS.len()];
     /// Metrics the host's first autofocus run fed to the search.
     fn focus_metrics() -> &'static [u64];
+    /// The simulated module's park (hyperfocal) code in its search settings,
+    /// worked out on the host in the same type.
+    const FOCUS_PARK: i32;
 }
 
 /// An expected refractometer output, in the host's bits ([`chains::ReadingOut`]).
@@ -63,7 +66,8 @@ pub type Expected<E> = Result<(i32, E, Result<E, Error>), Error>;
 
 /// The chain tables of one type, by name.
 macro_rules! chain_tables {
-    ($bits:ty, $exp:ty, $t:ident, $c:ident, $v:ident, $f:ident, $m:ident) => {
+    ($bits:ty, $exp:ty, $t:ident, $c:ident, $v:ident, $f:ident, $m:ident, $p:ident) => {
+        const FOCUS_PARK: i32 = table::$p;
         fn chain_temperatures() -> &'static [$bits; FRAMES] {
             &table::$t
         }
@@ -116,7 +120,8 @@ tabled_fixed!(
         CHAIN_OUT_I8F24,
         FOCUS_V_I8F24,
         FOCUS_OUT_I8F24,
-        FOCUS_METRICS_I8F24
+        FOCUS_METRICS_I8F24,
+        FOCUS_PARK_I8F24
     ]
 );
 tabled_fixed!(
@@ -129,7 +134,8 @@ tabled_fixed!(
         CHAIN_OUT_I32F32,
         FOCUS_V_I32F32,
         FOCUS_OUT_I32F32,
-        FOCUS_METRICS_I32F32
+        FOCUS_METRICS_I32F32,
+        FOCUS_PARK_I32F32
     ]
 );
 
@@ -161,7 +167,8 @@ impl Tabled for f32 {
         CHAIN_OUT_F64,
         FOCUS_V_F32,
         FOCUS_OUT_F32,
-        FOCUS_METRICS_F32
+        FOCUS_METRICS_F32,
+        FOCUS_PARK_F32
     );
 }
 
