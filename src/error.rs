@@ -144,6 +144,9 @@ pub enum Error {
     /// fault says why (no light, no boundary, low contrast, saturated, at the array's end,
     /// more than one boundary).
     Boundary(BoundaryFault),
+    /// The calibration store could not read, erase, write or verify its slots;
+    /// the fault says which (see [`refractometer::store`](crate::refractometer::store)).
+    Storage(StorageFault),
 }
 
 impl fmt::Display for Error {
@@ -171,6 +174,7 @@ impl fmt::Display for Error {
             Error::CloserThanMacro => f.write_str("subject closer than the actuator's macro limit"),
             Error::LowConfidence => f.write_str("estimate confidence below the gate"),
             Error::Boundary(fault) => write!(f, "boundary not measured: {fault}"),
+            Error::Storage(fault) => write!(f, "calibration store: {fault}"),
         }
     }
 }
@@ -225,5 +229,45 @@ impl fmt::Display for BoundaryFault {
 impl From<BoundaryFault> for Error {
     fn from(f: BoundaryFault) -> Self {
         Error::Boundary(f)
+    }
+}
+
+/// Why the calibration store failed. The old calibration is kept in every
+/// case: the store never touches the slot in use.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum StorageFault {
+    /// The slots do not fit the device: the region passes its end, the base is
+    /// not on an erase-sector boundary, or the write or read size is not a power
+    /// of two of at most 64 bytes, or the erase size not a multiple of it.
+    Geometry,
+    /// The driver refused an access as misaligned (`NorFlashErrorKind::NotAligned`).
+    NotAligned,
+    /// The driver refused an access as out of bounds (`NorFlashErrorKind::OutOfBounds`).
+    OutOfBounds,
+    /// The driver reported its own failure (a bus error, a locked or worn
+    /// sector, a power loss it noticed).
+    Device,
+    /// The record read back differs from the record written: a worn or
+    /// stuck cell. The store keeps using the previous slot.
+    Verify,
+}
+
+impl fmt::Display for StorageFault {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(match self {
+            StorageFault::Geometry => "slots do not fit the device's geometry",
+            StorageFault::NotAligned => "device refused a misaligned access",
+            StorageFault::OutOfBounds => "device refused an access out of bounds",
+            StorageFault::Device => "device error",
+            StorageFault::Verify => "record read back differs from the record written",
+        })
+    }
+}
+
+impl From<StorageFault> for Error {
+    fn from(f: StorageFault) -> Self {
+        Error::Storage(f)
     }
 }

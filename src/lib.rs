@@ -8,7 +8,7 @@
 //!
 //! | layer | modules |
 //! |---|---|
-//! | instruments (peers, never importing each other) | [`refractometer`] (sensor frame → boundary → nD at 20 °C → %Brix and other scales, calibration record, thermistor, forward model); [`autofocus`] (focus geometry, actuator calibration and driver, focus metrics, search, camera-module simulation) |
+//! | instruments (peers, never importing each other) | [`refractometer`] (sensor frame → boundary → nD at 20 °C → %Brix and other scales, calibration record and its flash store, thermistor, forward model); [`autofocus`] (focus geometry, actuator calibration and driver, focus metrics, search, camera-module simulation) |
 //! | physics | [`optics`] (refraction, Fresnel, dispersion, lenses, chromatic effects, prisms); [`media`] (water, seawater, air, glass, and the [`Medium`](media::Medium) seam) |
 //! | shared helpers | [`rng`] (the seeded generator of both simulations) |
 //! | numeric core | [`scalar`] (the [`Scalar`] trait, `lit!`, integer rounding), [`error`] |

@@ -168,6 +168,7 @@ pub mod geometry;
 pub mod instrument;
 pub mod record;
 pub mod scales;
+pub mod store;
 pub mod sucrose_temperature;
 pub mod syrup;
 pub mod table;

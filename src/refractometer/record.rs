@@ -2,8 +2,9 @@
 //! a CRC, and the two-slot rule that keeps the last good calibration through a
 //! power cut in the middle of a write.
 //!
-//! The crate encodes, decodes and chooses slots; the firmware owns the flash.
-//! Write a new record to [`SlotChoice::write_to`] (the older or invalid slot),
+//! This module encodes, decodes and chooses slots;
+//! [`store`](super::store) keeps them on a `NorFlash` or EEPROM device. By hand:
+//! write a new record to [`SlotChoice::write_to`] (the older or invalid slot),
 //! never over the record in use: a write torn at any byte leaves the other slot
 //! intact, and the next boot still finds it.
 //!
@@ -49,38 +50,19 @@ pub const MAGIC: [u8; 4] = *b"EOcR";
 
 const CRC_AT: usize = RECORD_LEN - 4;
 
-/// Byte-wise table for CRC-32/ISO-HDLC (reflected polynomial 0xEDB88320),
-/// built at compile time.
-const CRC_TABLE: [u32; 256] = {
-    let mut table = [0u32; 256];
-    let mut i = 0;
-    while i < 256 {
-        let mut c = i as u32;
-        let mut k = 0;
-        while k < 8 {
-            c = if c & 1 != 0 {
-                (c >> 1) ^ 0xEDB8_8320
-            } else {
-                c >> 1
-            };
-            k += 1;
-        }
-        table[i] = c;
-        i += 1;
-    }
-    table
-};
+/// CRC-32/ISO-HDLC from the `crc` crate, byte-wise table (1 KiB) built at
+/// compile time.
+const CRC32: crc::Crc<u32> = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
 
 /// CRC-32/ISO-HDLC (the CRC of zlib, PNG and Ethernet): init and final XOR
 /// 0xFFFFFFFF, reflected. Check value for `b"123456789"` is `0xCBF43926`.
+///
+/// ```
+/// use embedded_optics::refractometer::record::crc32;
+/// assert_eq!(crc32(b"123456789"), 0xCBF4_3926);
+/// ```
 pub fn crc32(bytes: &[u8]) -> u32 {
-    let mut crc = 0xFFFF_FFFFu32;
-    for &b in bytes {
-        let idx = ((crc ^ u32::from(b)) & 0xFF) as usize;
-        // `idx` is masked to 0..=255, so `get` always succeeds.
-        crc = (crc >> 8) ^ CRC_TABLE.get(idx).copied().unwrap_or(0);
-    }
-    !crc
+    CRC32.checksum(bytes)
 }
 
 /// One calibration: the empirical index correction and the conditions it was
