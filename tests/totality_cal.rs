@@ -9,6 +9,7 @@ use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
 };
 use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint, ScreenWashMass};
+use embedded_optics::refractometer::glycerol::GlycerolMass;
 use embedded_optics::refractometer::record::{CalibrationRecord, RECORD_LEN, choose_slots, crc32};
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
@@ -120,6 +121,8 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     // Fleet depot and winery scales: values inside their published ranges.
     within(UreaMass.value_at(a), -0.01, 44.01);
     within(UreaMass.nd20_at(a), 1.3329, 1.4019);
+    within(GlycerolMass.value_at(a), -0.01, 100.01);
+    within(GlycerolMass.nd20_at(a), 1.3330, 1.4740);
     let _ = UreaMass::in_specification(a);
     for alcohol in [Alcohol::Methanol, Alcohol::Ethanol, Alcohol::Propan2ol] {
         within(ScreenWashMass(alcohol).value_at(a), -0.01, 40.01);

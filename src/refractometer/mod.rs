@@ -165,6 +165,7 @@ pub mod compensation;
 pub mod forward;
 pub mod freezing;
 pub mod geometry;
+pub mod glycerol;
 pub mod instrument;
 pub mod record;
 pub mod scales;

@@ -41,6 +41,7 @@ fn all_rows() -> Vec<Row> {
         row::<cal::GlycolFreezingFromNd>(),
         row::<cal::BatteryAcidFromNd>(),
         row::<trade::UreaFromNd>(),
+        row::<trade::GlycerolFromNd>(),
         row::<trade::MethanolFreezing>(),
         row::<trade::MustDensityFromNd>(),
         row::<trade::SyrupDryMatterFromNd>(),

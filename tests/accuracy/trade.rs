@@ -6,6 +6,7 @@ use crate::cal::{icumsa_brix, invert, uniform_cubic};
 use crate::harness::{Budget, span};
 use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint};
+use embedded_optics::refractometer::glycerol::GlycerolMass;
 use embedded_optics::refractometer::sucrose_temperature::model_correction;
 use embedded_optics::refractometer::syrup::GlucoseSyrupDryMatter;
 use embedded_optics::refractometer::urea::UreaMass;
@@ -90,6 +91,30 @@ case! {
     },
     eval(x): {
     UreaMass.value_at(x[0])
+    }
+}
+
+/// Glycerine Producers' Association (1963) rows the glycerol scale stores:
+/// nD at 0, 10, ..., 100 % by mass.
+const GLYCEROL: [f64; 11] = [
+    1.33303, 1.34481, 1.35749, 1.37070, 1.38413, 1.39809, 1.41299, 1.42789, 1.44290, 1.45839,
+    1.47399,
+];
+
+case! {
+    pub struct GlycerolFromNd;
+    name: "refractometer::glycerol::GlycerolMass::value_at",
+    unit: "% by mass",
+    domain: "nD 1.33303–1.47399 (0–100 %)",
+    budget: Budget { f64: 1.0e-11, f32: 4.0e-4, i32f32: 6.0e-6, i8f24: 1.0e-3 },
+    inputs: {
+    span(1.33303, 1.47399, 601).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    Some(invert(|w| uniform_cubic(&GLYCEROL, 0.0, 10.0, w), x[0], 0.0, 100.0))
+    },
+    eval(x): {
+    GlycerolMass.value_at(x[0])
     }
 }
 
