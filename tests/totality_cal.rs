@@ -5,6 +5,7 @@
 mod support;
 
 use embedded_optics::media::{IndexReference, Medium};
+use embedded_optics::refractometer::brewing::{Plato, SpecificGravity};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation, WaterCompensation,
 };
@@ -123,6 +124,10 @@ fn scales_and_compensation<S: Scalar>(a: f64, b: f64, c: f64) {
     within(UreaMass.nd20_at(a), 1.3329, 1.4019);
     within(GlycerolMass.value_at(a), -0.01, 100.01);
     within(GlycerolMass.nd20_at(a), 1.3330, 1.4740);
+    within(SpecificGravity.value_at(a), 0.9999, 1.1790);
+    within(SpecificGravity.nd20_at(a), 1.3329, 1.3998);
+    within(Plato.value_at(a), -0.01, 40.5);
+    within(Plato.nd20_at(a), 1.3329, 1.3998);
     let _ = UreaMass::in_specification(a);
     for alcohol in [Alcohol::Methanol, Alcohol::Ethanol, Alcohol::Propan2ol] {
         within(ScreenWashMass(alcohol).value_at(a), -0.01, 40.01);

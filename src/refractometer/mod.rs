@@ -160,6 +160,7 @@ pub trait TradeScale<S: Scalar> {
 }
 
 pub mod boundary;
+pub mod brewing;
 pub mod calibration;
 pub mod compensation;
 pub mod forward;

@@ -42,6 +42,7 @@ fn all_rows() -> Vec<Row> {
         row::<cal::BatteryAcidFromNd>(),
         row::<trade::UreaFromNd>(),
         row::<trade::GlycerolFromNd>(),
+        row::<trade::GravityFromNd>(),
         row::<trade::MethanolFreezing>(),
         row::<trade::MustDensityFromNd>(),
         row::<trade::SyrupDryMatterFromNd>(),

@@ -5,6 +5,7 @@
 use crate::cal::{icumsa_brix, invert, uniform_cubic};
 use crate::harness::{Budget, span};
 use embedded_optics::refractometer::TradeScale;
+use embedded_optics::refractometer::brewing::SpecificGravity;
 use embedded_optics::refractometer::freezing::{Alcohol, ScreenWashFreezingPoint};
 use embedded_optics::refractometer::glycerol::GlycerolMass;
 use embedded_optics::refractometer::sucrose_temperature::model_correction;
@@ -115,6 +116,26 @@ case! {
     },
     eval(x): {
     GlycerolMass.value_at(x[0])
+    }
+}
+
+case! {
+    pub struct GravityFromNd;
+    name: "refractometer::brewing::SpecificGravity::value_at",
+    unit: "SG 20/20",
+    domain: "nD 1.33299–1.39986 (0–40 %Brix)",
+    budget: Budget { f64: 1.0e-11, f32: 2.0e-6, i32f32: 1.0e-8, i8f24: 2.0e-6 },
+    inputs: {
+    span(1.33299, 1.39986, 301).map(|x| vec![x]).collect()
+    },
+    reference(x): {
+    // The NBS-table fit (encyclopedia "Brix" article) solved in f64 for the
+    // ICUMSA %Brix of the index.
+    let brix = icumsa_brix(x[0]).clamp(0.0, 40.0);
+    Some(invert(|s| ((182.4601 * s - 775.6821) * s + 1262.7794) * s - 669.5622, brix, 0.99, 1.2))
+    },
+    eval(x): {
+    SpecificGravity.value_at(x[0])
     }
 }
 
