@@ -7,7 +7,8 @@
 //!   pixel, most significant first) on SPI0, clock GPIO18, data GPIO16, chip
 //!   select GPIO17, read into the frame buffer by DMA;
 //! - calibration: the crate's 64-byte record in the last two 4 KiB sectors of
-//!   the 2 MiB flash (one record per sector, the newest valid one wins);
+//!   the 2 MiB flash, through the crate's two-slot `CalibrationStore` on the
+//!   HAL's `NorFlash` (one record per sector, the newest valid one wins);
 //! - a button on GPIO15 to ground: held at power-up with distilled water on the
 //!   prism, it zeroes the instrument and stores the zero;
 //! - readings: logged with defmt (RTT), nD at 20 °C and %Brix.
@@ -32,8 +33,9 @@ use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
-use embedded_optics::refractometer::record::{self, RECORD_LEN, Slot};
+use embedded_optics::refractometer::record;
 use embedded_optics::refractometer::scales::SucroseBrix;
+use embedded_optics::refractometer::store::{CalibrationStore, NorFlashSlots};
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::{WaterLikeAtLed, WaterLikeDispersion};
 use embedded_optics::{Error, lit};
@@ -94,40 +96,12 @@ fn refractometer() -> Result<Refractometer, Error> {
     )
 }
 
-/// Where a slot lives in flash.
-fn slot_offset(slot: Slot) -> u32 {
-    match slot {
-        Slot::A => CALIBRATION_OFFSET,
-        Slot::B => CALIBRATION_OFFSET + flash::ERASE_SIZE as u32,
-    }
-}
-
 type BoardFlash<'d> = Flash<'d, FLASH, Blocking, FLASH_SIZE>;
 
-/// Reads both slots and picks the newest valid record.
-fn read_slots(flash: &mut BoardFlash<'_>) -> Result<record::SlotChoice, flash::Error> {
-    let mut a = [0u8; RECORD_LEN];
-    let mut b = [0u8; RECORD_LEN];
-    flash.blocking_read(slot_offset(Slot::A), &mut a)?;
-    flash.blocking_read(slot_offset(Slot::B), &mut b)?;
-    Ok(record::choose_slots(&a, &b))
-}
-
-/// Stores a calibration record in the slot `choice` names (the one not in use,
-/// so a power cut during the write leaves the old record valid).
-///
-/// THE ONE PLACE TO SWITCH TO THE CRATE'S FLASH STORE: once the two-slot store on
-/// `embedded-storage` is in the crate, replace this function and `read_slots`
-/// with it (`Flash` implements `NorFlash`).
-fn write_slot(
-    flash: &mut BoardFlash<'_>,
-    choice: &record::SlotChoice,
-    bytes: &[u8; RECORD_LEN],
-) -> Result<(), flash::Error> {
-    let at = slot_offset(choice.write_to);
-    flash.blocking_erase(at, at + flash::ERASE_SIZE as u32)?;
-    flash.blocking_write(at, bytes)
-}
+/// The calibration record in the two sectors at `CALIBRATION_OFFSET`: the
+/// crate's two-slot store on the HAL's `NorFlash` (a commit erases and writes
+/// the slot not in use and reads it back; a power cut keeps the old record).
+type Store<'d> = CalibrationStore<NorFlashSlots<BoardFlash<'d>>>;
 
 /// One frame from the line sensor: chip select low, 2048 bytes by DMA, chip
 /// select high, then the big-endian pixel pairs into counts.
@@ -167,20 +141,20 @@ async fn main(_spawner: Spawner) {
     let mut select = Output::new(p.PIN_17, Level::High);
     let zero_button = Input::new(p.PIN_15, Pull::Up);
 
-    let mut flash = BoardFlash::new_blocking(p.FLASH);
     let Ok(mut meter) = refractometer() else {
         defmt::error!("instrument description refused");
         return;
     };
-
-    let mut choice = match read_slots(&mut flash) {
-        Ok(c) => c,
-        Err(e) => {
-            warn!("calibration flash unreadable: {}", e);
-            record::choose_slots(&[], &[])
-        }
-    };
-    match choice.current {
+    let mut store: Option<Store<'_>> =
+        match CalibrationStore::on_nor_flash(BoardFlash::new_blocking(p.FLASH), CALIBRATION_OFFSET)
+        {
+            Ok(s) => Some(s),
+            Err(e) => {
+                warn!("calibration flash unusable: {}", e);
+                None
+            }
+        };
+    match store.as_ref().and_then(|s| s.current()) {
         Some((slot, rec)) => match meter.restore(&rec) {
             Ok(_) => info!("calibration {} restored from slot {}", rec.sequence, slot),
             Err(e) => warn!("stored calibration refused ({}): uncalibrated", e),
@@ -217,18 +191,24 @@ async fn main(_spawner: Spawner) {
                 Ok(None) => {}
                 Ok(Some(avg)) => {
                     zeroing = false;
+                    let choice = store
+                        .as_ref()
+                        .map_or(record::choose_slots(&[], &[]), |s| s.choice());
                     let stored = meter
                         .zero_with_water(&avg, &Water::new(IndexReference::Air))
                         .and_then(|_| meter.calibration_record(&choice));
-                    match stored {
-                        Ok(rec) => match write_slot(&mut flash, &choice, &rec.encode()) {
-                            Ok(()) => {
-                                info!("zero stored as calibration {}", rec.sequence);
-                                choice = read_slots(&mut flash).unwrap_or(choice);
+                    match (stored, store.as_mut()) {
+                        (Ok(rec), Some(store)) => match store.commit(rec) {
+                            Ok((slot, rec)) => {
+                                info!(
+                                    "zero stored as calibration {} in slot {}",
+                                    rec.sequence, slot
+                                )
                             }
                             Err(e) => warn!("calibration not stored: {}", e),
                         },
-                        Err(e) => warn!("zero refused: {}", e),
+                        (Ok(_), None) => warn!("zero kept until power-off: no calibration flash"),
+                        (Err(e), _) => warn!("zero refused: {}", e),
                     }
                 }
                 Err(e) => warn!("zero frame: {}", e),
