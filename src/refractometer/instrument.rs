@@ -548,7 +548,7 @@ where
         let raw = at.index;
         let index_at_led = self.correction.apply(raw)?;
         let (nd, nd_per_led) = self.to_nd(index_at_led)?;
-        let compensated = self.compensation.compensate(nd, t)?;
+        let compensated = self.compensation.compensate_prepared(nd, t)?;
         let nd20 = check_index(compensated.nd20)?;
         // Not `?`: a value off the scale does not cost the reading.
         let scale_value = match compensated

@@ -74,6 +74,17 @@ pub trait SampleCompensation<S: Scalar> {
         })
     }
 
+    /// [`compensate`](Self::compensate) for a reading path that keeps state
+    /// between readings: a model may prepare, once per degree of
+    /// temperature, what it would otherwise work out on every reading
+    /// ([`sucrose_rows::SucroseRows`]). A function of its inputs alone (not
+    /// of the readings before), within the model's stated difference from
+    /// [`compensate`](Self::compensate). The default is `compensate`;
+    /// [`Instrument::read`](instrument::Instrument::read) calls this one.
+    fn compensate_prepared(&mut self, nd: S, temperature_c: S) -> Result<Compensated<S>, Error> {
+        self.compensate(nd, temperature_c)
+    }
+
     /// What [`SampleCompensation::to_reference`] rests on at this point, and
     /// the standard uncertainty (nD at 20 °C, k = 1) it adds to a reading.
     /// The default: a stated formula or coefficient (water's IAPWS index, a
@@ -171,6 +182,8 @@ pub mod instrument;
 pub mod record;
 pub mod scales;
 pub mod store;
+pub mod sucrose_cells;
+pub mod sucrose_rows;
 pub mod sucrose_temperature;
 pub mod syrup;
 pub mod table;

@@ -50,7 +50,7 @@ use crate::scalar::Scalar;
 /// entries up to 70 % within their rounding. Interpolated, the table
 /// reproduces all 201 rows of OIV Table II (10.0–30.0 %, every 0.1 %) within
 /// 0.005 %Brix.
-const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
+pub(crate) const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
     x0: 0,
     step: 5,
     x_den: 1,

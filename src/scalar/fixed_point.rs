@@ -92,6 +92,10 @@ macro_rules! fixed_scalar {
                     .map(<$t>::from_bits)
                     .map_err(|_| Error::Overflow)
             }
+            fn floor_to_i32(self) -> Result<i32, Error> {
+                // An arithmetic shift of the bits is the floor.
+                i32::try_from(self.to_bits() >> <$t>::FRAC_NBITS).map_err(|_| Error::Overflow)
+            }
             fn round_to_i32(self) -> Result<i32, Error> {
                 self.checked_round()
                     .and_then(|r| r.checked_to_num::<i32>())

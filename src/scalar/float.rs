@@ -53,6 +53,15 @@ macro_rules! float_scalar {
                 // One rounding (of `num`), then an exact power-of-two scaling.
                 finite(num as $t * (1.0 / (1u64 << log2_den) as $t))
             }
+            fn floor_to_i32(self) -> Result<i32, Error> {
+                // Inside i32 (NaN fails both comparisons), `as` truncates
+                // toward zero: one step down for a negative non-integer.
+                if !(self >= i32::MIN as $t && self < -(i32::MIN as $t)) {
+                    return Err(Error::Overflow);
+                }
+                let t = self as i32;
+                Ok(if (t as $t) > self { t - 1 } else { t })
+            }
             fn round_to_i32(self) -> Result<i32, Error> {
                 let r = $m::round(self);
                 if r.is_finite() && r >= i32::MIN as $t && r <= i32::MAX as $t {

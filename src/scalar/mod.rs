@@ -158,6 +158,9 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error>;
     /// Nearest integer (ties away from zero), checked.
     fn round_to_i32(self) -> Result<i32, Error>;
+    /// Largest integer not above the value, checked (`Overflow` outside
+    /// `i32` and for NaN).
+    fn floor_to_i32(self) -> Result<i32, Error>;
 
     /// `self + rhs`.
     fn add(self, rhs: Self) -> Result<Self, Error>;
@@ -235,13 +238,6 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
 
 /// Integer part (floor) and fraction of a value.
 pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
-    let mut n = match x.round_to_i32() {
-        Ok(n) => n,
-        // Rounds past the type's range (I8F24 from 127.5 up): half lower not.
-        Err(e) => x.sub(S::HALF).map_err(|_| e)?.round_to_i32()?,
-    };
-    if S::from_i32(n)? > x {
-        n -= 1;
-    }
+    let n = x.floor_to_i32()?;
     Ok((n, x.sub(S::from_i32(n)?)?))
 }

@@ -174,10 +174,10 @@ fn main() {
 /// 10–75 %Brix) with room for the ±0.5 K of the uncertainty's differences.
 const SAMPLES: [(f64, f64); FRAMES] = [
     (0.0, 18.0),
-    (25.0, 17.0),
-    (20.0, 12.0),
-    (35.0, 16.0),
-    (50.0, 19.0),
+    (25.0, 17.3),
+    (20.0, 12.6),
+    (35.0, 16.2),
+    (50.0, 19.45),
 ];
 
 /// Smallest x in [lo, hi] with f(x) ≥ y, f rising (bisection, 60 halvings).

@@ -27,6 +27,7 @@ use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::geometry::GeometryDescription;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
 use embedded_optics::refractometer::scales::SucroseBrix;
+use embedded_optics::refractometer::sucrose_rows::SucroseRows;
 use embedded_optics::refractometer::wavelength::{WaterLikeAtLed, WaterLikeDispersion};
 use embedded_optics::{Error, Quantity, Scalar, lit, precomputed_water};
 
@@ -84,8 +85,7 @@ impl<S: Scalar> Medium<S> for TabledWater<S> {
 }
 
 /// The firmware's refractometer.
-pub type Refractometer<S> =
-    Instrument<S, Glass<S>, WaterLikeAtLed<S>, SucroseCompensation, SucroseBrix>;
+pub type Refractometer<S> = Instrument<S, Glass<S>, WaterLikeAtLed<S>, SucroseRows<S>, SucroseBrix>;
 
 /// Builds the refractometer, uncalibrated.
 pub fn refractometer<S: Scalar>() -> Result<Refractometer<S>, Error> {
@@ -95,7 +95,8 @@ pub fn refractometer<S: Scalar>() -> Result<Refractometer<S>, Error> {
         // Water's ratio worked out once for the LED (same bits as
         // `WaterLikeDispersion`, without two water evaluations per call).
         WaterLikeDispersion::at_led(S::from_f64(DESCRIPTION.led_wavelength_nm / 1000.0)?)?,
-        SucroseCompensation::oiv(),
+        // OIV Table I, prepared per whole degree of sample temperature.
+        SucroseRows::new(SucroseCompensation::oiv()),
         SucroseBrix,
     )
 }

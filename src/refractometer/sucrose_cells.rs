@@ -1,0 +1,212 @@
+//! The ICUMSA sucrose table's cubic, cell by cell, with its inverse, worked
+//! out at compile time: what a reading needs from the %Brix scale without
+//! reading the table's entries, dividing or searching at run time.
+//!
+//! [`SucroseBrix`](super::scales::SucroseBrix) reads the table by four-point
+//! interpolation; in each 5 %Brix cell that is one cubic. Here each cell's
+//! cubic is expanded from the cell's lower entry, `n = y_k + s·(q1 + s·(q2 +
+//! s·q3))` with `s` the place in the cell (0..1), and its inverse is a cubic
+//! in `v = (n − y_k)/(y_{k+1} − y_k)`, `s ≈ v·(e1 + v·(e2 + v·e3))`,
+//! interpolated through four points of the cell (within 2.3e-6 %Brix of the
+//! exact inverse), then one chord step of Newton's method (within 4e-8).
+//! `tests/sucrose_rows.rs` checks both against the table's own reading.
+
+use super::scales::ICUMSA_SUCROSE;
+use crate::scalar::{Format, Scalar, literal_bits, split_floor};
+
+/// Entries of the table.
+const ENTRIES: usize = ICUMSA_SUCROSE.ys.len();
+/// Cells (5 %Brix each).
+pub(crate) const CELLS: usize = ENTRIES - 1;
+
+/// One cell: `[y_k, q1, q2, q3, e1, e2, e3, 0.01/(y_{k+1} − y_k)]` (the
+/// last scaled by 1/100 so that it fits I8F24; differences in nD are scaled
+/// by 100 before they meet it).
+type Cell = [f64; 8];
+
+/// The cells in `f64`, from the table's integer entries by the same stencil
+/// as the table's reading (the cubic through four entries, shifted to the
+/// cell's lower entry).
+const fn cells() -> [Cell; CELLS] {
+    let ys = ICUMSA_SUCROSE.ys;
+    let den = ICUMSA_SUCROSE.y_den as f64;
+    let mut out = [[0.0; 8]; CELLS];
+    let mut k = 0;
+    while k < CELLS {
+        // The table's stencil: entries k0..k0+4 with k0 = clamp(k − 1).
+        let k0 = if k == 0 {
+            0
+        } else if k - 1 > ENTRIES - 4 {
+            ENTRIES - 4
+        } else {
+            k - 1
+        };
+        let (y0, y1) = (ys[k0] as f64 / den, ys[k0 + 1] as f64 / den);
+        let (y2, y3) = (ys[k0 + 2] as f64 / den, ys[k0 + 3] as f64 / den);
+        // Newton form p(t) = y0 + t·a1 + t(t−1)·a2 + t(t−1)(t−2)·a3.
+        let a1 = y1 - y0;
+        let a2 = (y2 - 2.0 * y1 + y0) / 2.0;
+        let a3 = (y3 - 3.0 * y2 + 3.0 * y1 - y0) / 6.0;
+        // Monomial in t, then shifted to s = t − m.
+        let (p1, p2, p3) = (a1 - a2 + 2.0 * a3, a2 - 3.0 * a3, a3);
+        let m = (k - k0) as f64;
+        let q3 = p3;
+        let q2 = p2 + 3.0 * m * p3;
+        let q1 = p1 + 2.0 * m * p2 + 3.0 * m * m * p3;
+        let yk = ys[k] as f64 / den;
+        let rise = (ys[k + 1] - ys[k]) as f64 / den;
+        // The inverse through s = 0, 1/3, 2/3, 1 (Newton divided differences
+        // on v, expanded; v0 = 0 and s0 = 0).
+        let (s1, s2, s3) = (1.0 / 3.0, 2.0 / 3.0, 1.0);
+        let v1 = s1 * (q1 + s1 * (q2 + s1 * q3)) / rise;
+        let v2 = s2 * (q1 + s2 * (q2 + s2 * q3)) / rise;
+        let v3 = s3 * (q1 + s3 * (q2 + s3 * q3)) / rise;
+        let f01 = s1 / v1;
+        let f12 = (s2 - s1) / (v2 - v1);
+        let f23 = (s3 - s2) / (v3 - v2);
+        let f012 = (f12 - f01) / v2;
+        let f123 = (f23 - f12) / (v3 - v1);
+        let f0123 = (f123 - f012) / v3;
+        let e1 = f01 - f012 * v1 + f0123 * v1 * v2;
+        let e2 = f012 - f0123 * (v1 + v2);
+        let e3 = f0123;
+        out[k] = [yk, q1, q2, q3, e1, e2, e3, 0.01 / rise];
+        k += 1;
+    }
+    out
+}
+
+/// The cells as bits of a number format (for [`Scalar::from_literal_bits`]).
+const fn cell_bits(format: Format) -> [[i64; 8]; CELLS] {
+    let c = cells();
+    let mut out = [[0; 8]; CELLS];
+    let mut k = 0;
+    while k < CELLS {
+        let mut j = 0;
+        while j < 8 {
+            out[k][j] = match literal_bits(c[k][j], format) {
+                Some(b) => b,
+                None => panic!("a sucrose cell constant does not fit the number format"),
+            };
+            j += 1;
+        }
+        k += 1;
+    }
+    out
+}
+
+/// The cells as 32-bit patterns for a 32-bit format (half the flash of
+/// [`cell_bits`]); zeros for any other format, which reads [`cell_bits`].
+const fn cell_bits32(format: Format) -> [[i32; 8]; CELLS] {
+    let mut out = [[0; 8]; CELLS];
+    let wide = match format {
+        Format::Float32 | Format::Fixed { total_bits: 32, .. } => cell_bits(format),
+        _ => return out,
+    };
+    let mut k = 0;
+    while k < CELLS {
+        let mut j = 0;
+        while j < 8 {
+            // Float32 patterns are zero-extended, 32-bit fixed point
+            // sign-extended: the low 32 bits carry either.
+            out[k][j] = wide[k][j] as i32;
+            j += 1;
+        }
+        k += 1;
+    }
+    out
+}
+
+/// Constant `j` of cell `k` in `S`.
+fn constant<S: Scalar>(k: usize, j: usize) -> Option<S> {
+    match S::FORMAT {
+        Format::Float32 => {
+            let bits = const { &cell_bits32(S::FORMAT) };
+            let b = *bits.get(k)?.get(j)?;
+            Some(S::from_literal_bits(i64::from(b as u32)))
+        }
+        Format::Fixed { total_bits: 32, .. } => {
+            let bits = const { &cell_bits32(S::FORMAT) };
+            Some(S::from_literal_bits(i64::from(*bits.get(k)?.get(j)?)))
+        }
+        _ => {
+            let bits = const { &cell_bits(S::FORMAT) };
+            Some(S::from_literal_bits(*bits.get(k)?.get(j)?))
+        }
+    }
+}
+
+/// Cell `k` in `S`.
+fn cell<S: Scalar>(k: usize) -> Option<[S; 8]> {
+    let mut out = [S::ZERO; 8];
+    for (j, slot) in out.iter_mut().enumerate() {
+        *slot = constant(k, j)?;
+    }
+    Some(out)
+}
+
+/// nD at 20 °C of `brix` %Brix, 0–85, and dnD/d%Brix there (the cubic's
+/// tangent). `None` outside 0–85 or where an operation fails: the caller
+/// reads the table itself.
+pub(crate) fn nd_of_brix<S: Scalar>(brix: S) -> Option<(S, S)> {
+    if !(brix >= S::ZERO && brix <= crate::lit!(S, 85.0)) {
+        return None;
+    }
+    // u in 0..17: the cell and the place in it.
+    let u = brix.mul(crate::lit!(S, 0.2)).ok()?;
+    let (k, s) = split_floor(u).ok()?;
+    let (k, s) = match usize::try_from(k).ok()? {
+        k if k >= CELLS => (CELLS - 1, S::ONE),
+        k => (k, s),
+    };
+    let [yk, q1, q2, q3, ..] = cell::<S>(k)?;
+    let n = (|| {
+        let inner = q2.add(s.mul(q3)?)?;
+        let r = q1.add(s.mul(inner)?)?;
+        let n = yk.add(s.mul(r)?)?;
+        // dn/ds = q1 + s·(2·q2 + 3·s·q3), per %Brix: / 5.
+        let ds = q1.add(s.mul(q2.add(q2)?.add(s.mul(q3)?.mul(crate::lit!(S, 3.0))?)?)?)?;
+        Ok::<_, crate::Error>((n, ds.mul(crate::lit!(S, 0.2))?))
+    })();
+    n.ok()
+}
+
+/// %Brix of `nd` on the 20 °C scale inside the table (nD from its first to
+/// its last entry); `None` outside or where an operation fails.
+pub(crate) fn brix_of_nd<S: Scalar>(nd: S) -> Option<S> {
+    let first = crate::lit!(S, ICUMSA_SUCROSE.ys[0] as f64 / ICUMSA_SUCROSE.y_den as f64);
+    let top = crate::lit!(
+        S,
+        ICUMSA_SUCROSE.ys[ENTRIES - 1] as f64 / ICUMSA_SUCROSE.y_den as f64
+    );
+    if !(nd >= first && nd <= top) {
+        return None;
+    }
+    // The last cell whose lower entry is at or below nd (rising entries),
+    // by halving.
+    let (mut k, mut above) = (0, CELLS);
+    while above - k > 1 {
+        let mid = (k + above) / 2;
+        if constant::<S>(mid, 0)? <= nd {
+            k = mid;
+        } else {
+            above = mid;
+        }
+    }
+    let [yk, q1, q2, q3, e1, e2, e3, per_rise] = cell::<S>(k)?;
+    let s = (|| {
+        let hundred = crate::lit!(S, 100.0);
+        let du = nd.sub(yk)?;
+        let v = du.mul(hundred)?.mul(per_rise)?;
+        let s = v.mul(e1.add(v.mul(e2.add(v.mul(e3)?)?)?)?)?;
+        // One chord step: s − (n(s) − nd)/(y_{k+1} − y_k).
+        let n_minus_yk = s.mul(q1.add(s.mul(q2.add(s.mul(q3)?)?)?)?)?;
+        s.sub(n_minus_yk.sub(du)?.mul(hundred)?.mul(per_rise)?)
+    })()
+    .ok()?;
+    let s = s.max(S::ZERO).min(S::ONE);
+    S::from_i32(5 * k as i32)
+        .ok()?
+        .add(s.mul(S::from_i32(5).ok()?).ok()?)
+        .ok()
+}
