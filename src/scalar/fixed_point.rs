@@ -116,7 +116,8 @@ macro_rules! fixed_scalar {
                     // 32×32→64 multiplication, which cannot overflow: its
                     // checked form pays for a 64-bit overflow test, about 150
                     // instructions on a Cortex-M0.
-                    let p = (self.to_bits() as i64).wrapping_mul(rhs.to_bits() as i64);
+                    // (`as i32` is exact here: 32-bit bits.)
+                    let p = super::wide::mul_i32_wide(self.to_bits() as i32, rhs.to_bits() as i32);
                     return <$inner>::try_from(p >> $frac)
                         .map(<$t>::from_bits)
                         .map_err(|_| Error::Overflow);
@@ -148,7 +149,11 @@ macro_rules! fixed_scalar {
                 // root costs a core without 64-bit hardware far more.
                 if $total + $frac + 2 <= 64 {
                     let wide = (self.to_bits() as u64) << ($frac + 2);
-                    return narrow(i128::from((wide.isqrt() + 1) >> 1));
+                    let root = match super::wide::isqrt_below_2_58(wide) {
+                        Some(r) => u64::from(r),
+                        None => wide.isqrt(),
+                    };
+                    return narrow(i128::from((root + 1) >> 1));
                 }
                 let wide = (self.to_bits() as u128) << ($frac + 2);
                 let r = (wide.isqrt() + 1) >> 1;

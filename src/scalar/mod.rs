@@ -17,6 +17,7 @@
 mod fixed_math;
 mod fixed_point;
 mod float;
+mod wide;
 
 use crate::error::{Error, Quantity};
 use core::fmt::Debug;
