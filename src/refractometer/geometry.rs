@@ -124,8 +124,14 @@ impl<S: Scalar> Geometry<S> {
         // SUBPIXEL · POSITION_SCALE = 2^22: a shift, not a division.
         const _: () = assert!(SUBPIXEL * POSITION_SCALE == 1 << 22);
         let t = S::from_ratio_pow2(offset, 22)?.mul(self.step)?;
-        let cos_beta = S::ONE.div(S::ONE.add(t.square()?)?.sqrt()?)?;
-        Ok((t, t.mul(cos_beta)?, cos_beta))
+        // Past tan β = 2 (β = 63°) the ray leaves any lens a refractometer
+        // images through: refused, which also bounds what follows
+        // (unchecked: 1 + t² ≤ 5, cos β in 0.44..1, |sin β| ≤ 0.9).
+        if t.abs()? > S::TWO {
+            return Err(Error::OutOfRange(Quantity::Angle));
+        }
+        let cos_beta = S::ONE.div(S::ONE.add_proved(t.mul_proved(t)).sqrt()?)?;
+        Ok((t, t.mul_proved(cos_beta), cos_beta))
     }
 
     /// Sine of the exit angle β for a boundary at `position` (1/65536 px).
@@ -168,31 +174,41 @@ impl<S: Scalar> Geometry<S> {
     pub fn index_at(&self, position: i32, n_prism: S) -> Result<IndexAtPosition<S>, Error> {
         let n_p = check_index(n_prism)?;
         let (_, sin_beta, cos_beta) = self.exit_ray(position)?;
-        let root = n_p.square()?.sub(sin_beta.square()?)?.sqrt()?;
+        // Ranges (unchecked arithmetic below): n_p in 1..4.5 (checked), |sin β|
+        // ≤ 0.9 and cos β in 0.44..1 (`exit_ray`), sin A and cos A in 0..1, so
+        // n_p² − sin²β is in 0.19..20.3, its root in 0.43..4.5, 1/root under
+        // 2.4, and every product below is under 11 in magnitude.
+        let root = n_p
+            .mul_proved(n_p)
+            .sub_proved(sin_beta.mul_proved(sin_beta))
+            .sqrt()?;
         // θc = A + φ at or past 90° (cos A·cos φ ≤ sin A·sin φ): the ray would
         // graze the measuring face or beyond, as for a sample at or above the
         // prism's index.
-        if self.cos_apex.mul(root)? <= self.sin_apex.mul(sin_beta)? {
+        if self.cos_apex.mul_proved(root) <= self.sin_apex.mul_proved(sin_beta) {
             return Err(Error::IndexAtOrAbovePrism);
         }
-        let n = self.cos_apex.mul(sin_beta)?.add(self.sin_apex.mul(root)?)?;
+        let n = self
+            .cos_apex
+            .mul_proved(sin_beta)
+            .add_proved(self.sin_apex.mul_proved(root));
         if n >= n_p {
             return Err(Error::IndexAtOrAbovePrism);
         }
         if n < S::ONE {
             return Err(Error::OutOfRange(Quantity::RefractiveIndex));
         }
-        // root ≥ cos A·root > sin A·sin β ≥ 0 here, and root ≤ n_p < 128.
         let per_root = S::ONE.div(root)?;
-        // dn/dsinβ · dsinβ/dt · dt/dpx, with dsinβ/dt = cos³β.
+        // dn/dsinβ · dsinβ/dt · dt/dpx, with dsinβ/dt = cos³β (|per_px| is
+        // under 0.1 for any described geometry).
         let dn_ds = self
             .cos_apex
-            .sub(self.sin_apex.mul(sin_beta)?.mul(per_root)?)?;
+            .sub_proved(self.sin_apex.mul_proved(sin_beta).mul_proved(per_root));
         let per_pixel = dn_ds
-            .mul(cos_beta.square()?.mul(cos_beta)?)?
-            .mul(self.per_px)?;
+            .mul_proved(cos_beta.mul_proved(cos_beta).mul_proved(cos_beta))
+            .mul_proved(self.per_px);
         // ∂n/∂n_p = sin A · n_p / root.
-        let per_prism_index = self.sin_apex.mul(n_p)?.mul(per_root)?;
+        let per_prism_index = self.sin_apex.mul_proved(n_p).mul_proved(per_root);
         Ok(IndexAtPosition {
             index: n,
             per_pixel,

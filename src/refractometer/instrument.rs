@@ -516,7 +516,11 @@ where
     /// nD from the corrected index at the LED wavelength, and dnD/dn.
     fn to_nd(&self, index_at_led: S) -> Result<(S, S), Error> {
         if let Some(r) = self.dispersion_ratio {
-            let nd = check_index(index_at_led.sub(S::ONE)?.mul(r)?.add(S::ONE)?)?;
+            // Unchecked inside: the index at the LED is checked first; for
+            // any ratio a product past the type's range saturates (fixed
+            // point) or is not finite (floats), and fails the check on nD.
+            let n = check_index(index_at_led)?;
+            let nd = check_index(n.sub_proved(S::ONE).mul_proved(r).add_proved(S::ONE))?;
             return Ok((nd, r));
         }
         let nd = self.dispersion.to_nd(index_at_led, self.wavelength)?;
@@ -714,10 +718,13 @@ fn root_sum_square<S: Scalar>(terms: [S; 4]) -> Result<S, Error> {
     if m >= crate::lit!(S, 1e-5) && m <= crate::lit!(S, 5e-3) {
         // ×32 twice: 1024 itself does not fit I8F24.
         let (up, down) = (crate::lit!(S, 32.0), crate::lit!(S, 1.0 / 32.0));
+        // Unchecked: each scaled term is under 5.12 (its square under 26.3),
+        // the sum under 105.
         for t in terms {
-            sum = sum.add(t.mul(up)?.mul(up)?.square()?)?;
+            let scaled = t.mul_proved(up).mul_proved(up);
+            sum = sum.add_proved(scaled.mul_proved(scaled));
         }
-        return sum.sqrt()?.mul(down)?.mul(down);
+        return Ok(sum.sqrt()?.mul_proved(down).mul_proved(down));
     }
     // Divisions, not a reciprocal: 1/m of an uncertainty in nD (1e-5) does
     // not fit I8F24.

@@ -44,6 +44,12 @@ const _: () = assert!(
         && (FIRST_NODE + ROW_STEP_BRIX * (ROW_NODES as i32 - 1)) as f64 > APPARENT_BRIX_MAX
 );
 
+/// Largest magnitude of a row entry (a correction or twice a segment's
+/// bend), %Brix: the published corrections and the model stay under 2.5
+/// %Brix at 5–40 °C; a row entry beyond it is left to the compensation
+/// itself.
+const ROW_LIMIT: f64 = 4.0;
+
 /// Grid segments per row.
 const SEGMENTS: usize = ROW_NODES - 1;
 
@@ -167,7 +173,17 @@ impl<S: Scalar> SucroseRows<S> {
             let at_middle = parabola(&through, from.add(step.mul(S::HALF)?)?)?;
             // c(f) = c0 + f·(c1 − c0) + 2f(f − 1)·κ, κ = c0 + c1 − 2·c½.
             let bend = at_from.add(at_to)?.sub(at_middle.add(at_middle)?)?;
-            *slot = (at_from, at_to, bend.add(bend)?);
+            let bend2 = bend.add(bend)?;
+            let limit = lit!(S, ROW_LIMIT);
+            if [at_from, at_to, bend2]
+                .iter()
+                .any(|v| v.abs().map_or(true, |a| a > limit))
+            {
+                // Outside the proved ranges: readings here go through the
+                // compensation itself.
+                continue;
+            }
+            *slot = (at_from, at_to, bend2);
             row.valid |= 1 << k;
             if [ca.basis, cm.basis, cb.basis]
                 .iter()
@@ -235,17 +251,19 @@ fn parabola<S: Scalar>(p: &[(S, S); 3], x: S) -> Result<S, Error> {
 }
 
 /// A row's correction in segment `k` at place `f` in it (0..1), and its
-/// slope across the segment (per segment).
-fn along<S: Scalar>(row: &Row<S>, k: usize, f: S) -> Result<(S, S), Error> {
+/// slope across the segment (per segment). Entries within ±[`ROW_LIMIT`]
+/// (see the caller's ranges); a segment past the row reads zero (the caller
+/// clamps `k`).
+fn along<S: Scalar>(row: &Row<S>, k: usize, f: S) -> (S, S) {
     let Some(&(a, b, bend2)) = row.ends.get(k) else {
-        return Err(Error::OutOfRange(Quantity::ScaleValue));
+        return (S::ZERO, S::ZERO);
     };
-    let rise = b.sub(a)?;
+    let rise = b.sub_proved(a);
     // c = a + f·rise + f(f − 1)·2κ; dc/df = rise + (2f − 1)·2κ.
-    let curve = f.sub(S::ONE)?.mul(bend2)?;
-    let value = a.add(f.mul(rise.add(curve)?)?)?;
-    let slope = rise.add(f.mul(bend2)?.add(curve)?)?;
-    Ok((value, slope))
+    let curve = f.sub_proved(S::ONE).mul_proved(bend2);
+    let value = a.add_proved(f.mul_proved(rise.add_proved(curve)));
+    let slope = rise.add_proved(f.mul_proved(bend2).add_proved(curve));
+    (value, slope)
 }
 
 impl<S: Scalar> SampleCompensation<S> for SucroseRows<S> {
@@ -280,11 +298,16 @@ impl<S: Scalar> SampleCompensation<S> for SucroseRows<S> {
             self.prepare(lo, hi)?;
         }
         let (lo_row, hi_row) = (&self.lower, &self.upper);
-        // Place on the grid: `brix_read` is inside APPARENT_BRIX_MIN..MAX
-        // (checked by `apparent_brix`), so `u` is in 0.5..18.4.
+        // Ranges, from here to `brix20` (unchecked arithmetic, `*_proved`):
+        // `brix_read` is inside APPARENT_BRIX_MIN..MAX (checked by the
+        // inversion), so `u` is in 0.5..18.4, `fb` and `ft` in 0..1; every
+        // row entry is within ±L = ±ROW_LIMIT (checked when the row was made),
+        // so a segment's rise is within ±2L, its curve term ±L, a row's value
+        // at `fb` and its slope ±4L, `across` ±8L, `per_kelvin` (×2 at most)
+        // ±16L = ±64: under 128, inside every number type.
         let u = brix_read
-            .sub(S::from_i32(FIRST_NODE)?)?
-            .mul(lit!(S, 1.0 / ROW_STEP_BRIX as f64))?;
+            .sub_proved(lit!(S, FIRST_NODE as f64))
+            .mul_proved(lit!(S, 1.0 / ROW_STEP_BRIX as f64));
         let (k, fb) = split_floor(u)?;
         let k = usize::try_from(k).unwrap_or(0).min(SEGMENTS - 1);
         let bit = |r: &Row<S>| (r.table >> k) & 1 == 1;
@@ -296,16 +319,17 @@ impl<S: Scalar> SampleCompensation<S> for SucroseRows<S> {
             return self.exact.compensate(nd, temperature_c);
         }
         let table = (!w_lo || bit(lo_row)) && (!w_hi || bit(hi_row));
-        let (c_lo, rise_lo) = along(lo_row, k, fb)?;
-        let (c_hi, rise_hi) = along(hi_row, k, fb)?;
-        let across = c_hi.sub(c_lo)?;
-        let correction = c_lo.add(across.mul(ft)?)?;
-        let per_kelvin = across.mul(per_kelvin_factor)?;
+        let (c_lo, rise_lo) = along(lo_row, k, fb);
+        let (c_hi, rise_hi) = along(hi_row, k, fb);
+        let across = c_hi.sub_proved(c_lo);
+        let correction = c_lo.add_proved(across.mul_proved(ft));
+        let per_kelvin = across.mul_proved(per_kelvin_factor);
         let per_brix = rise_lo
-            .add(rise_hi.sub(rise_lo)?.mul(ft)?)?
-            .mul(lit!(S, 1.0 / ROW_STEP_BRIX as f64))?;
+            .add_proved(rise_hi.sub_proved(rise_lo).mul_proved(ft))
+            .mul_proved(lit!(S, 1.0 / ROW_STEP_BRIX as f64));
 
-        let brix20 = brix_read.add(correction)?;
+        // Under 87 + 4L = 103.
+        let brix20 = brix_read.add_proved(correction);
         let (nd20, slope) = match nd_of_brix(brix20) {
             Some(cell) => cell,
             None => (

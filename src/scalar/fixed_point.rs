@@ -92,6 +92,29 @@ macro_rules! fixed_scalar {
                     .map(<$t>::from_bits)
                     .map_err(|_| Error::Overflow)
             }
+            #[inline(always)]
+            fn add_proved(self, rhs: Self) -> Self {
+                self.saturating_add(rhs)
+            }
+            #[inline(always)]
+            fn sub_proved(self, rhs: Self) -> Self {
+                self.saturating_sub(rhs)
+            }
+            #[inline(always)]
+            fn mul_proved(self, rhs: Self) -> Self {
+                if $total == 32 {
+                    // As `mul`, saturated instead of checked.
+                    let p = super::wide::mul_i32_wide(self.to_bits() as i32, rhs.to_bits() as i32);
+                    let q = (p >> $frac).clamp(i64::from(i32::MIN), i64::from(i32::MAX));
+                    return <$t>::from_bits(q as $inner);
+                }
+                match self.mul(rhs) {
+                    Ok(p) => p,
+                    // Only an overflow fails a product: saturate by its sign.
+                    Err(_) if (self < Self::ZERO) != (rhs < Self::ZERO) => Self::MIN,
+                    Err(_) => Self::MAX,
+                }
+            }
             fn floor_to_i32(self) -> Result<i32, Error> {
                 // An arithmetic shift of the bits is the floor.
                 i32::try_from(self.to_bits() >> <$t>::FRAC_NBITS).map_err(|_| Error::Overflow)

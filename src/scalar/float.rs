@@ -53,6 +53,18 @@ macro_rules! float_scalar {
                 // One rounding (of `num`), then an exact power-of-two scaling.
                 finite(num as $t * (1.0 / (1u64 << log2_den) as $t))
             }
+            #[inline(always)]
+            fn add_proved(self, rhs: Self) -> Self {
+                self + rhs
+            }
+            #[inline(always)]
+            fn sub_proved(self, rhs: Self) -> Self {
+                self - rhs
+            }
+            #[inline(always)]
+            fn mul_proved(self, rhs: Self) -> Self {
+                self * rhs
+            }
             fn floor_to_i32(self) -> Result<i32, Error> {
                 // Inside i32 (NaN fails both comparisons), `as` truncates
                 // toward zero: one step down for a negative non-integer.

@@ -208,6 +208,16 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     fn square(self) -> Result<Self, Error> {
         self.mul(self)
     }
+    /// `self + rhs` where the caller has proved the sum inside the type's
+    /// range (the proof sits beside the call): no `Result` to test on the
+    /// way. Should a proof fail, the value is still no panic and no wrapped
+    /// garbage: floats give the IEEE sum (a non-finite one reaches the
+    /// checked result), fixed point saturates.
+    fn add_proved(self, rhs: Self) -> Self;
+    /// `self − rhs`, as [`add_proved`](Self::add_proved).
+    fn sub_proved(self, rhs: Self) -> Self;
+    /// `self · rhs`, as [`add_proved`](Self::add_proved).
+    fn mul_proved(self, rhs: Self) -> Self;
     /// `self * a + b`.
     fn mul_add(self, a: Self, b: Self) -> Result<Self, Error> {
         self.mul(a)?.add(b)
