@@ -11,8 +11,9 @@ use embedded_optics::refractometer::geometry::Correction;
 use embedded_optics::refractometer::record::CalibrationRecord;
 use embedded_optics::refractometer::scales::{
     BatteryAcidDensity, EthyleneGlycolFreezingPoint, EthyleneGlycolMass, HoneyWater,
-    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix,
+    MustPotentialAlcohol, Salinity, SaltBrine, SucroseBrix, apparent_brix,
 };
+use embedded_optics::refractometer::sucrose_rows::SucroseRows;
 use embedded_optics::refractometer::thermistor::{Beta, SteinhartHart, ThermistorModel};
 use embedded_optics::refractometer::{SampleCompensation, TradeScale};
 use embedded_optics::{Error, Scalar};
@@ -358,6 +359,37 @@ impl Case for SucroseCorrection {
     }
     fn eval<S: Scalar>(x: &[S]) -> Result<S, Error> {
         SucroseCompensation::oiv().brix_at_reference(x[0], x[1])
+    }
+}
+
+case! {
+    /// The same published cells read through the compensation prepared per
+    /// whole degree, at temperatures off whole degrees (where the rows
+    /// interpolate): the correction it applies to the apparent %Brix.
+    pub struct SucroseRowsCorrection;
+    name: "refractometer::sucrose_rows::SucroseRows::compensate_prepared (correction)",
+    unit: "%Brix",
+    domain: "5.125–16.875 °C (off whole degrees), 10–75 %Brix, the published cells",
+    budget: Budget { f64: 3.0e-6, f32: 2.0e-4, i32f32: 1.0e-6, i8f24: 1.0e-4 },
+    inputs: {
+    let mut v = Vec::new();
+    for t in span(5.125, 16.875, 48) {
+        for b in span(10.0, 75.0, 66) {
+            if oiv_correction(t, b).is_some() {
+                v.push(vec![b, t]);
+            }
+        }
+    }
+    v
+    },
+    reference(x): {
+    oiv_correction(x[1], x[0])
+    },
+    eval(x): {
+    let nd = SucroseBrix.nd20_at(x[0])?;
+    let c = SucroseRows::new(SucroseCompensation::oiv()).compensate_prepared(nd, x[1])?;
+    let (_, brix20) = c.in_domain.ok_or(Error::Overflow)?;
+    brix20.sub(apparent_brix(nd)?)
     }
 }
 

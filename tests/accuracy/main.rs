@@ -47,6 +47,7 @@ fn all_rows() -> Vec<Row> {
         row::<trade::MustDensityFromNd>(),
         row::<trade::SyrupDryMatterFromNd>(),
         row::<cal::SucroseCorrection>(),
+        row::<cal::SucroseRowsCorrection>(),
         row::<trade::SucroseTemperatureModel>(),
         row::<cal::LinearSampleCompensation>(),
         row::<cal::PrismIndex>(),
