@@ -130,7 +130,7 @@ impl<S: Scalar> Geometry<S> {
         if t.abs()? > S::TWO {
             return Err(Error::OutOfRange(Quantity::Angle));
         }
-        let cos_beta = S::ONE.div(S::ONE.add_proved(t.mul_proved(t)).sqrt()?)?;
+        let cos_beta = S::ONE.add_proved(t.mul_proved(t)).recip_sqrt()?;
         Ok((t, t.mul_proved(cos_beta), cos_beta))
     }
 
@@ -168,9 +168,9 @@ impl<S: Scalar> Geometry<S> {
     }
 
     /// Sample index for a boundary at `position` (1/65536 px) with the prism
-    /// index `n_prism`, and both sensitivities. Two square roots (cos β and
-    /// the refracted ray's cosine in the prism) and one division (its
-    /// reciprocal, shared by both sensitivities); the rest multiplications.
+    /// index `n_prism`, and both sensitivities. Two reciprocal square roots
+    /// (cos β, and the refracted ray's cosine in the prism, shared by the
+    /// index and both sensitivities); the rest multiplications.
     pub fn index_at(&self, position: i32, n_prism: S) -> Result<IndexAtPosition<S>, Error> {
         let n_p = check_index(n_prism)?;
         let (_, sin_beta, cos_beta) = self.exit_ray(position)?;
@@ -178,10 +178,12 @@ impl<S: Scalar> Geometry<S> {
         // ≤ 0.9 and cos β in 0.44..1 (`exit_ray`), sin A and cos A in 0..1, so
         // n_p² − sin²β is in 0.19..20.3, its root in 0.43..4.5, 1/root under
         // 2.4, and every product below is under 11 in magnitude.
-        let root = n_p
+        let under = n_p
             .mul_proved(n_p)
-            .sub_proved(sin_beta.mul_proved(sin_beta))
-            .sqrt()?;
+            .sub_proved(sin_beta.mul_proved(sin_beta));
+        // One reciprocal root serves the root and both sensitivities.
+        let per_root = under.recip_sqrt()?;
+        let root = under.mul_proved(per_root);
         // θc = A + φ at or past 90° (cos A·cos φ ≤ sin A·sin φ): the ray would
         // graze the measuring face or beyond, as for a sample at or above the
         // prism's index.
@@ -198,7 +200,6 @@ impl<S: Scalar> Geometry<S> {
         if n < S::ONE {
             return Err(Error::OutOfRange(Quantity::RefractiveIndex));
         }
-        let per_root = S::ONE.div(root)?;
         // dn/dsinβ · dsinβ/dt · dt/dpx, with dsinβ/dt = cos³β (|per_px| is
         // under 0.1 for any described geometry).
         let dn_ds = self

@@ -724,7 +724,10 @@ fn root_sum_square<S: Scalar>(terms: [S; 4]) -> Result<S, Error> {
             let scaled = t.mul_proved(up).mul_proved(up);
             sum = sum.add_proved(scaled.mul_proved(scaled));
         }
-        return Ok(sum.sqrt()?.mul_proved(down).mul_proved(down));
+        // √sum as sum · (1/√sum): multiplications only in fixed point; sum
+        // is positive here (the largest term is at least 1e-5).
+        let root = sum.mul_proved(sum.recip_sqrt()?);
+        return Ok(root.mul_proved(down).mul_proved(down));
     }
     // Divisions, not a reciprocal: 1/m of an uncertainty in nD (1e-5) does
     // not fit I8F24.

@@ -104,8 +104,15 @@ macro_rules! fixed_scalar {
             fn mul_proved(self, rhs: Self) -> Self {
                 if $total == 32 {
                     // As `mul`, saturated instead of checked.
-                    let p = super::wide::mul_i32_wide(self.to_bits() as i32, rhs.to_bits() as i32);
-                    let q = (p >> $frac).clamp(i64::from(i32::MIN), i64::from(i32::MAX));
+                    let q = match super::wide::mul_shift_i32(
+                        self.to_bits() as i32,
+                        rhs.to_bits() as i32,
+                        $frac,
+                    ) {
+                        Ok(v) => v,
+                        Err(true) => i32::MIN,
+                        Err(false) => i32::MAX,
+                    };
                     return <$t>::from_bits(q as $inner);
                 }
                 match self.mul(rhs) {
@@ -114,6 +121,9 @@ macro_rules! fixed_scalar {
                     Err(_) if (self < Self::ZERO) != (rhs < Self::ZERO) => Self::MIN,
                     Err(_) => Self::MAX,
                 }
+            }
+            fn recip_sqrt(self) -> Result<Self, Error> {
+                super::newton::recip_sqrt(self)
             }
             fn floor_to_i32(self) -> Result<i32, Error> {
                 // An arithmetic shift of the bits is the floor.
@@ -140,10 +150,13 @@ macro_rules! fixed_scalar {
                     // checked form pays for a 64-bit overflow test, about 150
                     // instructions on a Cortex-M0.
                     // (`as i32` is exact here: 32-bit bits.)
-                    let p = super::wide::mul_i32_wide(self.to_bits() as i32, rhs.to_bits() as i32);
-                    return <$inner>::try_from(p >> $frac)
-                        .map(<$t>::from_bits)
-                        .map_err(|_| Error::Overflow);
+                    return super::wide::mul_shift_i32(
+                        self.to_bits() as i32,
+                        rhs.to_bits() as i32,
+                        $frac,
+                    )
+                    .map(|v| <$t>::from_bits(v as $inner))
+                    .map_err(|_| Error::Overflow);
                 }
                 self.checked_mul(rhs).ok_or(Error::Overflow)
             }

@@ -17,6 +17,7 @@
 mod fixed_math;
 mod fixed_point;
 mod float;
+mod newton;
 mod wide;
 
 use crate::error::{Error, Quantity};
@@ -218,6 +219,15 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     fn sub_proved(self, rhs: Self) -> Self;
     /// `self · rhs`, as [`add_proved`](Self::add_proved).
     fn mul_proved(self, rhs: Self) -> Self;
+    /// `1/√self`: `MathDomain` for `self ≤ 0`. The floats divide by the
+    /// square root; fixed point takes Newton's method (multiplications only,
+    /// within a few units of the last place of the rounded reciprocal root).
+    fn recip_sqrt(self) -> Result<Self, Error> {
+        if !(self > Self::ZERO) {
+            return Err(Error::MathDomain);
+        }
+        Self::ONE.div(self.sqrt()?)
+    }
     /// `self * a + b`.
     fn mul_add(self, a: Self, b: Self) -> Result<Self, Error> {
         self.mul(a)?.add(b)

@@ -3,17 +3,35 @@
 //! generic 64-bit multiply and `u64::isqrt` (which divides) cost several
 //! times more there; the results are the same integers.
 
-/// `a · b` exactly, from four 16×16 partial products.
+/// `⌊a·b / 2^frac⌋` for `0 < frac < 32`, as `Ok` when it fits an `i32`;
+/// `Err(negative)` when it does not, saying which way it overflowed. In
+/// 32-bit words throughout: four 16×16 partial products, carries by
+/// comparison, the shift across the two words.
 #[inline(always)]
-pub(crate) fn mul_i32_wide(a: i32, b: i32) -> i64 {
-    // a = ah·2^16 + al with al in 0..2^16, ah in −2^15..2^15 (same for b):
-    // each partial product fits an i32 (|ah·bl| < 2^31, al·bl < 2^32 as u32).
-    let (al, ah) = ((a & 0xFFFF) as u32, a >> 16);
-    let (bl, bh) = ((b & 0xFFFF) as u32, b >> 16);
-    let low = i64::from(al.wrapping_mul(bl));
-    let cross = i64::from(ah.wrapping_mul(bl as i32)) + i64::from((al as i32).wrapping_mul(bh));
-    let high = i64::from(ah.wrapping_mul(bh));
-    (high << 32) + (cross << 16) + low
+pub(crate) fn mul_shift_i32(a: i32, b: i32, frac: u32) -> Result<i32, bool> {
+    let (al, ah) = (a as u32 & 0xFFFF, a >> 16);
+    let (bl, bh) = (b as u32 & 0xFFFF, b >> 16);
+    // a·b = ah·bh·2^32 + (ah·bl + al·bh)·2^16 + al·bl, each term in range
+    // of its word: |ah·bl|, |al·bh| < 2^31, ah·bh ≤ 2^30, al·bl < 2^32.
+    let low = al.wrapping_mul(bl);
+    let high = ah.wrapping_mul(bh);
+    let m1 = ah.wrapping_mul(bl as i32);
+    let m2 = (al as i32).wrapping_mul(bh);
+    let low1 = low.wrapping_add((m1 as u32) << 16);
+    let high1 = high
+        .wrapping_add(m1 >> 16)
+        .wrapping_add(i32::from(low1 < low));
+    let low2 = low1.wrapping_add((m2 as u32) << 16);
+    let high2 = high1
+        .wrapping_add(m2 >> 16)
+        .wrapping_add(i32::from(low2 < low1));
+    // Bits 63..(31 + frac) of the product must all equal its sign.
+    let top = high2 >> (frac - 1);
+    if top == 0 || top == -1 {
+        Ok(((high2 as u32) << (32 - frac) | (low2 >> frac)) as i32)
+    } else {
+        Err(high2 < 0)
+    }
 }
 
 /// `⌊√x⌋` for `x < 2^58`, digit by digit in 32-bit words: two bits of `x`
@@ -45,37 +63,45 @@ pub(crate) fn isqrt_below_2_58(x: u64) -> Option<u32> {
 
 #[cfg(test)]
 mod tests {
-    use super::{isqrt_below_2_58, mul_i32_wide};
+    use super::{isqrt_below_2_58, mul_shift_i32};
 
     #[test]
-    fn products_are_exact() {
+    fn shifted_products_are_exact() {
+        let check = |a: i32, b: i32, frac: u32| {
+            let p = (i64::from(a) * i64::from(b)) >> frac;
+            let want = i32::try_from(p).map_err(|_| p < 0);
+            assert_eq!(mul_shift_i32(a, b, frac), want, "{a} {b} {frac}");
+        };
         let edges = [
             0,
             1,
             -1,
-            2,
-            -2,
             0xFFFF,
             -0xFFFF,
             0x10000,
             -0x10000,
-            i32::MAX,
+            0x7FFF_FFFF,
             i32::MIN,
-            12345,
-            -98765,
+            1 << 24,
+            -(1 << 24),
+            3 << 23,
         ];
-        for &a in &edges {
-            for &b in &edges {
-                assert_eq!(mul_i32_wide(a, b), i64::from(a) * i64::from(b), "{a} {b}");
+        for frac in [1, 16, 24, 31] {
+            for &a in &edges {
+                for &b in &edges {
+                    check(a, b, frac);
+                }
             }
         }
         let mut x = 0x9E37_79B9_7F4A_7C15u64;
-        for _ in 0..100_000 {
+        for _ in 0..200_000 {
             x ^= x << 13;
             x ^= x >> 7;
             x ^= x << 17;
             let (a, b) = (x as i32, (x >> 32) as i32);
-            assert_eq!(mul_i32_wide(a, b), i64::from(a) * i64::from(b));
+            check(a, b, 24);
+            check(a >> 9, b >> 5, 24);
+            check(a >> 17, b, 24);
         }
     }
 
