@@ -640,30 +640,43 @@ fn has_light<P: Copy + Into<i32>>(frame: &[P], bright_block: usize, floor: u16) 
 /// search reach (w + 2 blocks) and one more on each side.
 const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
 
-/// `(H[j], D[j])` computed directly, from running box sums `S(i) = Σ p[i..i+w]`:
-/// `H[j] = Σ_{m<w} (S(j+w+m) − S(j+m))` and `D[j] = G[j+w] − G[j] = S(j+2w) −
-/// 2 S(j+w) + S(j)` (`D` needs one pixel more than `H`; past the frame it is
-/// not used).
+/// `(H[j], D[j])` computed directly, in one pass over the pixels with their
+/// weights: `H[j] = Σ_{m<w} G[j+m]` weighs pixel `j + t` by `−(t + 1)` on the
+/// first `w` pixels, `2t − 3w + 2` on the next `w` and `3w − 1 − t` on the last
+/// `w`, and `D[j] = G[j+w] − G[j]` by `1, −2, 1` on the same three thirds
+/// (`D` needs one pixel more than `H`, the last one, of weight 0 in `H`; past
+/// the frame it is read as 0, and not used).
 fn step_and_slope<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> (i32, i32) {
-    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2; the last of D's may
-    // be missing (then read as 0, and D is not used).
-    let window = frame.get(j..).unwrap_or(&[]);
-    let leaving = window.get(..window.len().min(2 * w)).unwrap_or(&[]);
-    let entering = window.get(w..window.len().min(3 * w)).unwrap_or(&[]);
-    let s0: i32 = leaving.iter().take(w).map(|&v| v.into()).sum();
-    let (mut s, mut lower, mut upper, mut middle) = (s0, 0, 0, s0);
-    let (first_half, second_half) = leaving.split_at(leaving.len().min(w));
-    for (&out, &inn) in first_half.iter().zip(entering) {
-        lower += s;
-        s += inn.into() - out.into();
-        middle = s;
+    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2.
+    let third = |m: usize| {
+        let start = j.saturating_add(m * w).min(frame.len());
+        let end = start.saturating_add(w).min(frame.len());
+        frame.get(start..end).unwrap_or(&[])
+    };
+    let w32 = i32::try_from(w).unwrap_or(0);
+    let (mut h, mut d) = (0i32, 0i32);
+    let mut weight = -1;
+    for &p in third(0) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d += p;
+        weight -= 1;
     }
-    let later = entering.get(w..).unwrap_or(&[]);
-    for (m, &out) in second_half.iter().enumerate() {
-        upper += s;
-        s += later.get(m).map_or(0, |&v| v.into()) - out.into();
+    let mut weight = 2 - w32;
+    for &p in third(1) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d -= 2 * p;
+        weight += 2;
     }
-    (upper - lower, s - 2 * middle + s0)
+    let mut weight = w32 - 1;
+    for &p in third(2) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d += p;
+        weight -= 1;
+    }
+    (h, d)
 }
 
 /// `H[first + i]` (sign-adjusted: negated unless `RISING`) into `out[i]`, by
