@@ -35,8 +35,8 @@
 //! (`thumbv6m-none-eabi`, rustc 1.95, the board images' `opt-level = "s"`,
 //! fat LTO; QEMU `microbit` with `-icount`, counted through SysTick; items
 //! `boundary finder` in `examples/boards/kit`) a frame costs 5.0 instructions
-//! per pixel plus about 5 200 per frame (refinement, plateaus, checks): about
-//! 10 300 for 1024 pixels, 840 bytes of stack; an unlit frame, which takes a
+//! per pixel plus about 5 050 per frame (refinement, plateaus, checks; on a
+//! Cortex-M4F 3.5 and 3 100): about 10 100 for 1024 pixels, 848 bytes of stack; an unlit frame, which takes a
 //! second pass, about 7 900. The centroid sits at the steepest part of the edge, which
 //! for a Fresnel-shaped edge lies a fixed fraction of the blur width beside the
 //! true critical angle; the instrument's calibration against standards removes
@@ -295,8 +295,8 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     // The samples jl − 1 ..= jr + 1: stored ones, or gathered for a wide edge.
     let top = peak - threshold;
     let centroid = match near.get(jl - 1 - first.min(jl - 1)..=jr + 1 - first) {
-        Some(stored) if jl > first => centroid_q16(stored.iter().copied(), threshold, top),
-        _ => centroid_q16((jl - 1..=jr + 1).map(step), threshold, top),
+        Some(stored) if jl > first => centroid_q16(stored, threshold, top),
+        _ => centroid_gathered(step, jl - 1..=jr + 1, threshold, top),
     }
     .ok_or(BoundaryFault::NoBoundary)?;
     // Step j (twice smoothed) is centred between pixels j + w − 1 and j + w, then
@@ -316,7 +316,7 @@ pub fn find_boundary<P: Copy + Into<i32>>(
         .get(left_start..right_end)
         .ok_or(BoundaryFault::AtArrayEnd)?;
     let saturation = i32::from(cfg.saturation_level);
-    if brightest(used) >= saturation {
+    if reaches(used, saturation) {
         return Err(BoundaryFault::Saturated.into());
     }
     let left = plateau(frame.get(left_start..left_end).unwrap_or(&[]));
@@ -338,14 +338,14 @@ pub fn find_boundary<P: Copy + Into<i32>>(
     // (Eight σ·√8 in 1/256 count squared is 1024·noise_q8²; against opposite²·65536
     // that is 8·opposite > noise_q8, both sides non-negative.)
     // Block steps stay below 8·65535 < 2^19: the products fit i32.
-    if opposite.saturating_mul(100) > main.saturating_mul(i32::from(cfg.opposite_percent))
-        && u32::try_from(opposite).is_ok_and(|o| o.saturating_mul(8) > noise_q8)
+    if times(opposite, 100) > times(main, cfg.opposite_percent)
+        && u32::try_from(opposite).is_ok_and(|o| times_u32(o, 8) > noise_q8)
     {
         return Err(BoundaryFault::MultipleBoundaries.into());
     }
     // (Means of at most 16-bit pixels: contrast·256 < 2^24.)
     if contrast < i32::from(cfg.min_contrast)
-        || contrast.unsigned_abs() * 256 < noise_q8.saturating_mul(5)
+        || contrast.unsigned_abs() * 256 < times_u32(noise_q8, 5)
     {
         return Err(BoundaryFault::LowContrast.into());
     }
@@ -383,7 +383,7 @@ fn centroid_threshold(peak: i32, before: i32, after: i32) -> i32 {
     let curvature = 2 * peak - before - after;
     let spread = (after - before).unsigned_abs();
     let rise = if curvature > 0 {
-        let den = curvature.unsigned_abs().saturating_mul(8);
+        let den = times_u32(curvature.unsigned_abs(), 8);
         // (`checked_mul` would cost a 64-bit multiplication on the M0.)
         let q = if spread < 1 << 16 {
             (spread * spread) / den.max(1)
@@ -428,27 +428,28 @@ fn div10(n: u32) -> u32 {
 /// samples take part, so the area (×6) stays below 6·97·2^16 < 2^26, Σ i·v below
 /// 97·96/2·2^16 < 2^29 and the first moment (×6) below 2^31. The end segments'
 /// zero crossings `L = b / (b − a)` (Q16, at most 2^16) times `b` < 2^16 fit `u32`.
-fn centroid_q16(mut steps: impl Iterator<Item = i32>, threshold: i32, top: i32) -> Option<i64> {
+fn centroid_q16(steps: &[i32], threshold: i32, top: i32) -> Option<i64> {
     const ONE: i64 = SUBPIXEL as i64;
-    let shift = 16u32.saturating_sub(u32::try_from(top).ok()?.leading_zeros());
+    // (No count of leading zeros for `top` < 2^16: on the Cortex-M0 it is a
+    // library call.)
+    let shift = match u32::try_from(top).ok()? {
+        t if t < 1 << 16 => 0,
+        t => 16 - t.leading_zeros(),
+    };
     let value = |h: i32| ((h - threshold) >> shift).min(0xFFFF);
     // Interior: area×6 = 6 Σ v − 3 (v_0 + v_L), moment×6 = 6 Σ i·v_i + v_0 −
     // (3L + 1) v_L, with i counted from the first sample above the threshold
     // and L the last i; Σ i·v_i = (L + 1) Σ v − Σ of the running sums. One pass:
     // a sample is inside once another follows it.
-    let outside_left = steps.next()?;
-    let mut pending = steps.next()?;
-    let v0 = value(pending);
-    let (mut sum, mut running, mut count, mut vl) = (0i32, 0i32, 0i32, v0);
-    for h in steps {
-        vl = value(pending);
-        sum += vl;
+    let (&outside_left, rest) = steps.split_first()?;
+    let (&outside_right, inside) = rest.split_last()?;
+    let (v0, vl) = (value(*inside.first()?), value(*inside.last()?));
+    let (mut sum, mut running) = (0i32, 0i32);
+    for &h in inside {
+        sum += value(h);
         running += sum;
-        count += 1;
-        pending = h;
     }
-    let outside_right = pending;
-    let last = count.checked_sub(1)?;
+    let last = i32::try_from(inside.len()).ok()? - 1;
     let first_moment = (last + 1) * sum - running;
     let mut area = i64::from(6 * sum - 3 * (v0 + vl));
     let mut moment = i64::from(6 * first_moment + v0 - (3 * last + 1) * vl) * ONE;
@@ -476,10 +477,29 @@ fn centroid_q16(mut steps: impl Iterator<Item = i32>, threshold: i32, top: i32) 
     Some((moment + area / 2).div_euclid(area))
 }
 
+/// [`centroid_q16`] of samples `steps(j)` for `j` in `range` (at most the
+/// refinement window's 2·WINDOW + 1, as the caller's `lo..=hi` guarantees),
+/// gathered first: the wide edges that outgrow the stored samples. Out of line,
+/// so that its buffer stays off the stack of the usual path.
+#[inline(never)]
+fn centroid_gathered(
+    step: impl Fn(usize) -> i32,
+    range: core::ops::RangeInclusive<usize>,
+    threshold: i32,
+    top: i32,
+) -> Option<i64> {
+    let mut samples = [0i32; 2 * WINDOW + 1];
+    let last = range.end().checked_sub(*range.start())?;
+    for (slot, j) in samples.iter_mut().zip(range) {
+        *slot = step(j);
+    }
+    centroid_q16(samples.get(..=last)?, threshold, top)
+}
+
 /// `2.2 · σ / C · width` in 1/65536 px, integer only.
 fn uncertainty_q16(noise_q8: u32, contrast: i32, edge_width_q8: u32) -> i32 {
     // Contrast at most 65535: 10·contrast fits.
-    let den = contrast.max(1).unsigned_abs().saturating_mul(10);
+    let den = times_u32(contrast.max(1).unsigned_abs(), 10);
     let width = edge_width_q8.max(256);
     // 22·noise < 2^21 and width < 2^11 (noise below 372 counts, edges narrower
     // than 8 px): the product fits 32 bits.
@@ -508,16 +528,38 @@ fn mul_div(a: u32, b: u32, den: u32, bias: u32) -> u32 {
     }
 }
 
-/// Largest pixel of a slice, four at a time (a load and a compare per pixel).
-fn brightest<P: Copy + Into<i32>>(pixels: &[P]) -> i32 {
+/// `a · b` saturating at the `i32` range. One 32-bit multiplication for
+/// factors below 2^24 (always, on `u16` frames); `saturating_mul` would take a
+/// 64-bit product on the Cortex-M0.
+fn times(a: i32, b: u8) -> i32 {
+    if a.unsigned_abs() < 1 << 24 {
+        a * i32::from(b)
+    } else {
+        a.saturating_mul(i32::from(b))
+    }
+}
+
+/// `a · b` saturating at `u32::MAX`, as [`times`].
+fn times_u32(a: u32, b: u8) -> u32 {
+    if a < 1 << 24 {
+        a * u32::from(b)
+    } else {
+        a.saturating_mul(u32::from(b))
+    }
+}
+
+/// Whether some pixel of a slice reaches `level`, four at a time (a load, a
+/// compare and a branch per pixel).
+fn reaches<P: Copy + Into<i32>>(pixels: &[P], level: i32) -> bool {
     let mut quads = pixels.chunks_exact(4);
-    let mut top = i32::MIN;
     for q in &mut quads {
-        if let [a, b, c, d] = *q {
-            top = top.max(a.into().max(b.into()).max(c.into().max(d.into())));
+        if let [a, b, c, d] = *q
+            && (a.into() >= level || b.into() >= level || c.into() >= level || d.into() >= level)
+        {
+            return true;
         }
     }
-    quads.remainder().iter().fold(top, |t, &v| t.max(v.into()))
+    quads.remainder().iter().any(|&v| v.into() >= level)
 }
 
 fn clamp_u16(x: i32) -> u16 {
@@ -598,30 +640,43 @@ fn has_light<P: Copy + Into<i32>>(frame: &[P], bright_block: usize, floor: u16) 
 /// search reach (w + 2 blocks) and one more on each side.
 const NEAR: usize = 2 * (SMOOTHING_MAX as usize + 2 * BLOCK + 1) + 1;
 
-/// `(H[j], D[j])` computed directly, from running box sums `S(i) = Σ p[i..i+w]`:
-/// `H[j] = Σ_{m<w} (S(j+w+m) − S(j+m))` and `D[j] = G[j+w] − G[j] = S(j+2w) −
-/// 2 S(j+w) + S(j)` (`D` needs one pixel more than `H`; past the frame it is
-/// not used).
+/// `(H[j], D[j])` computed directly, in one pass over the pixels with their
+/// weights: `H[j] = Σ_{m<w} G[j+m]` weighs pixel `j + t` by `−(t + 1)` on the
+/// first `w` pixels, `2t − 3w + 2` on the next `w` and `3w − 1 − t` on the last
+/// `w`, and `D[j] = G[j+w] − G[j]` by `1, −2, 1` on the same three thirds
+/// (`D` needs one pixel more than `H`, the last one, of weight 0 in `H`; past
+/// the frame it is read as 0, and not used).
 fn step_and_slope<P: Copy + Into<i32>>(frame: &[P], j: usize, w: usize) -> (i32, i32) {
-    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2; the last of D's may
-    // be missing (then read as 0, and D is not used).
-    let window = frame.get(j..).unwrap_or(&[]);
-    let leaving = window.get(..window.len().min(2 * w)).unwrap_or(&[]);
-    let entering = window.get(w..window.len().min(3 * w)).unwrap_or(&[]);
-    let s0: i32 = leaving.iter().take(w).map(|&v| v.into()).sum();
-    let (mut s, mut lower, mut upper, mut middle) = (s0, 0, 0, s0);
-    let (first_half, second_half) = leaving.split_at(leaving.len().min(w));
-    for (&out, &inn) in first_half.iter().zip(entering) {
-        lower += s;
-        s += inn.into() - out.into();
-        middle = s;
+    // H[j] for j ≤ n − 3w + 1 reads pixels j ..= j + 3w − 2.
+    let third = |m: usize| {
+        let start = j.saturating_add(m * w).min(frame.len());
+        let end = start.saturating_add(w).min(frame.len());
+        frame.get(start..end).unwrap_or(&[])
+    };
+    let w32 = i32::try_from(w).unwrap_or(0);
+    let (mut h, mut d) = (0i32, 0i32);
+    let mut weight = -1;
+    for &p in third(0) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d += p;
+        weight -= 1;
     }
-    let later = entering.get(w..).unwrap_or(&[]);
-    for (m, &out) in second_half.iter().enumerate() {
-        upper += s;
-        s += later.get(m).map_or(0, |&v| v.into()) - out.into();
+    let mut weight = 2 - w32;
+    for &p in third(1) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d -= 2 * p;
+        weight += 2;
     }
-    (upper - lower, s - 2 * middle + s0)
+    let mut weight = w32 - 1;
+    for &p in third(2) {
+        let p: i32 = p.into();
+        h += weight * p;
+        d += p;
+        weight -= 1;
+    }
+    (h, d)
 }
 
 /// `H[first + i]` (sign-adjusted: negated unless `RISING`) into `out[i]`, by
