@@ -223,7 +223,7 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     /// square root; fixed point takes Newton's method (multiplications only,
     /// within a few units of the last place of the rounded reciprocal root).
     fn recip_sqrt(self) -> Result<Self, Error> {
-        if !(self > Self::ZERO) {
+        if self.partial_cmp(&Self::ZERO) != Some(core::cmp::Ordering::Greater) {
             return Err(Error::MathDomain);
         }
         Self::ONE.div(self.sqrt()?)

@@ -40,7 +40,8 @@ const fn seed_bits(format: Format) -> [i64; SEEDS] {
 /// error 3.1e-2 → 1.4e-3 → 3e-6 → 1.4e-11, then the type's rounding), and
 /// the scale `2^−e`. Ranges inside: m < 4, y ≤ 1, every product under 4.
 pub(crate) fn recip_sqrt<S: Scalar>(x: S) -> Result<S, Error> {
-    if !(x > S::ZERO) {
+    // NaN and every value up to zero.
+    if x.partial_cmp(&S::ZERO) != Some(core::cmp::Ordering::Greater) {
         return Err(Error::MathDomain);
     }
     let four = crate::lit!(S, 4.0);
