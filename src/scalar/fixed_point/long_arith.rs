@@ -2,15 +2,18 @@
 //! multiplication or division.
 //!
 //! A 32-bit core without a divider or a 32×32→64 multiplier (Cortex-M0) pays
-//! for an `i128` product with a software routine and for an `i128` quotient or
-//! `u128` square root with a loop over 128-bit words. Here the product is four
-//! 32×32 partial products added in 128 bits (additions only), and the quotient
-//! and the root are shift-and-subtract loops on 64-bit words that start at the
-//! first bit that can be non-zero. Results are exactly those of the wide
-//! arithmetic: `floor(a·b / 2^frac)`, `trunc(a·2^frac / b)` and
-//! `floor(√(x·4^k))`.
+//! for an `i128` product with an overflow test on 128 bits and for an `i128`
+//! quotient or a `u128` square root with loops over 128-bit words. Here the
+//! product is four 32×32 partial products added in 128 bits (additions only),
+//! and the quotient and the root are shift-and-subtract loops on 64-bit words
+//! (the root's first 16 digits on 32-bit words) that start at the first bit
+//! that can be non-zero. Results are exactly those of the wide arithmetic:
+//! `floor(a·b / 2^frac)`, `trunc(a·2^frac / b)` and `floor(√(x·4^k))`.
+
+use core::ops::{BitOr, Shl, Sub};
 
 /// `floor(a·b / 2^frac)`, or `None` outside `i64` (`frac ≤ 64`).
+#[inline]
 pub(super) fn mul_shr(a: i64, b: i64, frac: u32) -> Option<i64> {
     // a = ah·2^32 + al with ah signed, al unsigned; the same for b.
     let (ah, al) = (a >> 32, i64::from(a as u32));
@@ -70,21 +73,46 @@ fn div_words(mut rem: u64, mut lo: u64, d: u64) -> u64 {
 /// `floor(√(x·4^zero_pairs))`, for a result below 2^61.
 pub(super) fn sqrt_shl(x: u64, zero_pairs: u32) -> u64 {
     // Digit by digit, two bits of the radicand per step from its first non-zero
-    // pair, then the zero pairs below: with `root` the root of the pairs taken
-    // so far and `rem` what they leave, the next root bit is 1 when
-    // 4·rem + pair ≥ 4·root + 1. rem ≤ 2·root keeps every step in 64 bits.
+    // pair: the pairs of x moved to the top of a word (the zero pairs this adds
+    // at the bottom are the first of `zero_pairs`), then the remaining zero
+    // pairs. The first 16 steps leave a root below 2^16 and a remainder below
+    // 2^17: 32-bit words; the rest take 64-bit words.
+    if x == 0 {
+        return 0;
+    }
     let lead = x.leading_zeros() & !1;
-    let mut pairs = if lead == 64 { 0 } else { x << lead };
-    let (mut root, mut rem) = (0u64, 0u64);
-    for _ in 0..(64 - lead) / 2 + zero_pairs {
-        rem = (rem << 2) | (pairs >> 62);
+    let top = x << lead;
+    let steps = (64 - lead) / 2 + zero_pairs;
+    let first = steps.min(16);
+    let (mut root, mut rem) = (0u32, 0u32);
+    let mut pairs = (top >> 32) as u32;
+    for _ in 0..first {
+        (root, rem) = root_step(root, rem, pairs >> 30);
         pairs <<= 2;
-        root <<= 1;
-        let trial = (root << 1) | 1;
-        if rem >= trial {
-            rem -= trial;
-            root |= 1;
-        }
+    }
+    let (mut root, mut rem) = (u64::from(root), u64::from(rem));
+    // Past the 32 pairs of `top` the pairs are zero: `pairs` runs dry.
+    let mut pairs = top as u32;
+    for _ in first..steps {
+        (root, rem) = root_step(root, rem, u64::from(pairs >> 30));
+        pairs <<= 2;
     }
     root
+}
+
+/// One digit of the root: with `root` the root of the pairs taken so far and
+/// `rem` what they leave (rem ≤ 2·root), the next root bit is 1 when
+/// 4·rem + pair ≥ 4·root + 1.
+#[inline(always)]
+fn root_step<T>(root: T, rem: T, pair: T) -> (T, T)
+where
+    T: Copy + PartialOrd + From<u8> + Shl<u32, Output = T> + BitOr<Output = T> + Sub<Output = T>,
+{
+    let rem = (rem << 2) | pair;
+    let trial = (root << 2) | T::from(1);
+    if rem >= trial {
+        ((root << 1) | T::from(1), rem - trial)
+    } else {
+        (root << 1, rem)
+    }
 }
