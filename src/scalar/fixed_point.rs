@@ -163,7 +163,8 @@ macro_rules! fixed_scalar {
                     let wide = (self.to_bits() as u64) << ($frac + 2);
                     return narrow(i128::from((wide.isqrt() + 1) >> 1));
                 }
-                // Wider (I32F32): a digit-by-digit root in 64-bit words.
+                // Wider (I32F32): a digit-by-digit root in 32- and 64-bit
+                // words, the frac + 2 extra bits as zero pairs.
                 let r = long_arith::sqrt_shl(self.to_bits() as u64, $frac / 2 + 1);
                 narrow(i128::from((r + 1) >> 1))
             }
@@ -196,6 +197,8 @@ macro_rules! fixed_scalar {
                 true
             }
         }
+
+        const _: () = assert!($frac % 2 == 0, "the root's shift is whole pairs of bits");
 
         impl Narrow for $t {
             fn narrow(bits: i128) -> Result<Self, Error> {
