@@ -1,0 +1,118 @@
+//! Product, quotient and square root of 64-bit fixed-point bits without 128-bit
+//! multiplication or division.
+//!
+//! A 32-bit core without a divider or a 32×32→64 multiplier (Cortex-M0) pays
+//! for an `i128` product with an overflow test on 128 bits and for an `i128`
+//! quotient or a `u128` square root with loops over 128-bit words. Here the
+//! product is four 32×32 partial products added in 128 bits (additions only),
+//! and the quotient and the root are shift-and-subtract loops on 64-bit words
+//! (the root's first 16 digits on 32-bit words) that start at the first bit
+//! that can be non-zero. Results are exactly those of the wide arithmetic:
+//! `floor(a·b / 2^frac)`, `trunc(a·2^frac / b)` and `floor(√(x·4^k))`.
+
+use core::ops::{BitOr, Shl, Sub};
+
+/// `floor(a·b / 2^frac)`, or `None` outside `i64` (`frac ≤ 64`).
+#[inline]
+pub(super) fn mul_shr(a: i64, b: i64, frac: u32) -> Option<i64> {
+    // a = ah·2^32 + al with ah signed, al unsigned; the same for b.
+    let (ah, al) = (a >> 32, i64::from(a as u32));
+    let (bh, bl) = (b >> 32, i64::from(b as u32));
+    // Each partial product fits i64: |ah|, |bh| ≤ 2^31 and al, bl < 2^32
+    // (al·bl < 2^64 is taken unsigned).
+    let low = (al as u64) * (bl as u64);
+    let cross = i128::from(ah * bl) + i128::from(al * bh);
+    let p = (i128::from(ah * bh) << 64) + (cross << 32) + i128::from(low);
+    i64::try_from(p >> frac).ok()
+}
+
+/// `trunc(a·2^frac / b)` (rounded toward zero), or `None` if it lies outside
+/// `i64` or `b` is zero (`frac < 64`).
+pub(super) fn div_shl(a: i64, b: i64, frac: u32) -> Option<i64> {
+    let (n, d) = (a.unsigned_abs(), b.unsigned_abs());
+    // The numerator n·2^frac as a high and a low word.
+    let (hi, lo) = ((n >> 1) >> (63 - frac), n << frac);
+    // A quotient of 64 bits or more (hi ≥ d) never fits; d = 0 is refused here.
+    if hi >= d {
+        return None;
+    }
+    let q = div_words(hi, lo, d);
+    if (a < 0) != (b < 0) {
+        // −2^63 is the one negative quotient whose magnitude is not an i64.
+        if q > 1 << 63 {
+            None
+        } else {
+            Some((q as i64).wrapping_neg())
+        }
+    } else {
+        i64::try_from(q).ok()
+    }
+}
+
+/// `floor((hi·2^64 + lo) / d)` for `hi < d ≤ 2^63` (the quotient fits 64 bits).
+fn div_words(mut rem: u64, mut lo: u64, d: u64) -> u64 {
+    // Restoring division, one quotient bit per step: the pair (rem, lo) moves
+    // left, numerator bits leave `lo` at the top, quotient bits enter at the
+    // bottom. While the partial remainder is shorter than d the quotient bits
+    // are zero: those steps are one shift. rem < d ≤ 2^63 keeps 2·rem + 1 in
+    // 64 bits.
+    let skip = (63 - d.leading_zeros()).saturating_sub(64 - rem.leading_zeros());
+    rem = (rem << skip) | ((lo >> 1) >> (63 - skip));
+    lo <<= skip;
+    for _ in skip..64 {
+        rem = (rem << 1) | (lo >> 63);
+        lo <<= 1;
+        if rem >= d {
+            rem -= d;
+            lo |= 1;
+        }
+    }
+    lo
+}
+
+/// `floor(√(x·4^zero_pairs))`, for a result below 2^61.
+pub(super) fn sqrt_shl(x: u64, zero_pairs: u32) -> u64 {
+    // Digit by digit, two bits of the radicand per step from its first non-zero
+    // pair: the pairs of x moved to the top of a word (the zero pairs this adds
+    // at the bottom are the first of `zero_pairs`), then the remaining zero
+    // pairs. The first 16 steps leave a root below 2^16 and a remainder below
+    // 2^17: 32-bit words; the rest take 64-bit words.
+    if x == 0 {
+        return 0;
+    }
+    let lead = x.leading_zeros() & !1;
+    let top = x << lead;
+    let steps = (64 - lead) / 2 + zero_pairs;
+    let first = steps.min(16);
+    let (mut root, mut rem) = (0u32, 0u32);
+    let mut pairs = (top >> 32) as u32;
+    for _ in 0..first {
+        (root, rem) = root_step(root, rem, pairs >> 30);
+        pairs <<= 2;
+    }
+    let (mut root, mut rem) = (u64::from(root), u64::from(rem));
+    // Past the 32 pairs of `top` the pairs are zero: `pairs` runs dry.
+    let mut pairs = top as u32;
+    for _ in first..steps {
+        (root, rem) = root_step(root, rem, u64::from(pairs >> 30));
+        pairs <<= 2;
+    }
+    root
+}
+
+/// One digit of the root: with `root` the root of the pairs taken so far and
+/// `rem` what they leave (rem ≤ 2·root), the next root bit is 1 when
+/// 4·rem + pair ≥ 4·root + 1.
+#[inline(always)]
+fn root_step<T>(root: T, rem: T, pair: T) -> (T, T)
+where
+    T: Copy + PartialOrd + From<u8> + Shl<u32, Output = T> + BitOr<Output = T> + Sub<Output = T>,
+{
+    let rem = (rem << 2) | pair;
+    let trial = (root << 2) | T::from(1);
+    if rem >= trial {
+        ((root << 1) | T::from(1), rem - trial)
+    } else {
+        (root << 1, rem)
+    }
+}
