@@ -272,7 +272,13 @@ fn conversion_setup_reading<S: Tabled>(
 /// Base of [`conversion_per_reading`].
 pub fn conversion_per_reading_base<S: Tabled>(i: usize) {
     black_box(row::<S>(i));
-    black_box(conversion_setup_reading::<S>(i).map(|(_, a)| a));
+    // The same moves as the item (the instrument and the average land in
+    // this frame), so that the difference is the reading alone.
+    let Some((inst, avg)) = conversion_setup_reading::<S>(i) else {
+        return;
+    };
+    black_box(&inst);
+    black_box(&avg);
 }
 
 /// Conversion per reading: averaged boundary position and temperature → nD,
@@ -283,6 +289,7 @@ pub fn conversion_per_reading<S: Tabled>(i: usize) {
     let Some((mut inst, avg)) = conversion_setup_reading::<S>(i) else {
         return;
     };
+    black_box(&inst);
     // By reference: the result stays where `read` wrote it, as a firmware
     // reads its fields (`.ok()` would copy the reading once more).
     black_box(&inst.read(black_box(&avg)));
