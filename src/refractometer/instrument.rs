@@ -21,9 +21,13 @@
 //! Work that depends only on the instrument's state is done when that state
 //! changes: the dispersion's refractivity ratio at the LED once at
 //! construction, the prism's index at the LED once per whole degree of
-//! temperature drift (a reading takes the line through it). A %Brix reading
-//! stays in the %Brix domain: one table inversion, no conversion back from nD
-//! at 20 °C. Costs in `docs/cost.md`.
+//! temperature drift (a reading takes the line through it), and, through
+//! [`SampleCompensation::compensate_prepared`], whatever the sample model
+//! prepares: [`SucroseRows`](super::sucrose_rows::SucroseRows) lays the
+//! sucrose compensation out once per whole-degree interval (114 corrections
+//! when the temperature enters a new one; the first reading there costs them).
+//! A %Brix reading stays in the %Brix domain: no conversion back from nD at
+//! 20 °C. Costs in `docs/cost.md`.
 //!
 //! Number types: f32, f64 and I32F32 run the whole chain from the same code;
 //! the LED wavelength is carried in µm inside (the unit of [`Medium`] and
