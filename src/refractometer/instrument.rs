@@ -243,6 +243,9 @@ pub struct Instrument<S, P, W, C, T> {
     /// The prism at the LED wavelength near the last temperature read:
     /// (whole °C, index there, index per kelvin).
     prism_near: Option<(i32, S, S)>,
+    /// The geometry over the stretch of the array the last reading fell in,
+    /// at the prism's index of that whole degree (see [`PositionSpan`]).
+    span: Option<PositionSpan<S>>,
     dispersion: W,
     /// `r` of `nD − 1 = (n − 1)·r` at the LED, when the model has that form.
     dispersion_ratio: Option<S>,
@@ -269,6 +272,36 @@ pub struct Instrument<S, P, W, C, T> {
     history: [(S, S); SETTLE_MAX],
     history_len: usize,
     history_next: usize,
+}
+
+/// Positions per span: 8 pixels (1/65536 px units, a power of two).
+const SPAN_LOG2: u32 = 19;
+/// Pixels per span.
+const SPAN_PIXELS: i32 = 1 << (SPAN_LOG2 - 16);
+
+/// The geometry's index over one stretch of 8 pixels (aligned to multiples
+/// of 8), at the prism's index of one whole degree, as a cubic in the place
+/// `u` (0..1) in the stretch, `n = c0 + u·(c1 + u·(c2 + u·c3))`, from the
+/// index and its slope at both ends (Hermite), and the slope per unit of
+/// prism index along a straight line. Readings of one sample fall in one
+/// stretch; a reading elsewhere or at another degree makes a new one (two
+/// exact geometry evaluations). A function of the position and the degree
+/// alone: the stretch is the aligned one the position lies in.
+///
+/// Why 8 pixels: the ends' slopes carry the number type's rounding (in
+/// I8F24 about 1e-7 per pixel), which enters the cubic's interior times the
+/// stretch's length; over 8 pixels that stays under 1.2e-7 in the index.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct PositionSpan<S> {
+    degree: i32,
+    /// Position of the stretch's start >> SPAN_LOG2.
+    stretch: i32,
+    /// The prism's index it was made at.
+    n_prism: S,
+    /// c0, c1, c2, c3.
+    c: [S; 4],
+    /// ∂n/∂n_prism at the two ends.
+    per_prism: [S; 2],
 }
 
 fn described<S: Scalar>(x: f64, lo: f64, hi: f64, q: Quantity) -> Result<S, Error> {
@@ -308,6 +341,7 @@ where
             led_pm: libm::round(d.led_wavelength_nm * 1000.0) as u32,
             prism,
             prism_near: None,
+            span: None,
             dispersion,
             dispersion_ratio,
             compensation,
@@ -517,6 +551,86 @@ where
         Ok((self.geometry.index_at(position, n_p)?, prism_per_kelvin))
     }
 
+    /// [`Self::raw_index`] through the stretch of the array the position lies
+    /// in (see [`PositionSpan`]): a cubic in the position and a straight line
+    /// in the prism's index instead of two reciprocal square roots.
+    /// Within 1e-9 of the geometry in f64 (`tests/position_span.rs`); where the stretch cannot
+    /// be made (its end past the geometry's range) the geometry itself.
+    fn raw_index_near(
+        &mut self,
+        position: i32,
+        temperature_c: S,
+    ) -> Result<(IndexAtPosition<S>, S), Error> {
+        let (n_p, prism_per_kelvin) = self.prism_at(temperature_c)?;
+        let (degree, n_degree) = match self.prism_near {
+            Some((whole, n0, _)) => (whole, n0),
+            None => return Ok((self.geometry.index_at(position, n_p)?, prism_per_kelvin)),
+        };
+        let stretch = position >> SPAN_LOG2;
+        let span = match self.span {
+            Some(s) if s.degree == degree && s.stretch == stretch => s,
+            _ => match self.make_span(degree, stretch, n_degree) {
+                Ok(s) => {
+                    self.span = Some(s);
+                    s
+                }
+                Err(_) => return Ok((self.geometry.index_at(position, n_p)?, prism_per_kelvin)),
+            },
+        };
+        // Ranges (unchecked): u in 0..1; the ends' index in 1..4.5; slopes per
+        // 8 pixels under 0.8 (per pixel under 0.1, see `Geometry::index_at`),
+        // so |c2|, |c3| under 12; the prism's index within the degree's
+        // line, so n_p − n_prism is under 1e-3; ∂n/∂n_p under 11.
+        let u = S::from_ratio_pow2(position.wrapping_sub(stretch << SPAN_LOG2), SPAN_LOG2)?;
+        let [c0, c1, c2, c3] = span.c;
+        let inner = c2.add_proved(u.mul_proved(c3));
+        let value = c0.add_proved(u.mul_proved(c1.add_proved(u.mul_proved(inner))));
+        // dn/du = c1 + u·(2·c2 + 3·u·c3).
+        let bend = c2
+            .add_proved(c2)
+            .add_proved(u.mul_proved(c3.mul_proved(crate::lit!(S, 3.0))));
+        let per_u = c1.add_proved(u.mul_proved(bend));
+        let [p0, p1] = span.per_prism;
+        let per_prism_index = p0.add_proved(u.mul_proved(p1.sub_proved(p0)));
+        let index = value.add_proved(per_prism_index.mul_proved(n_p.sub_proved(span.n_prism)));
+        // The geometry's own refusals, at the reading's index.
+        if index >= n_p {
+            return Err(Error::IndexAtOrAbovePrism);
+        }
+        if index < S::ONE {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+        let at = IndexAtPosition {
+            index,
+            // Per pixel: d/du over the stretch's pixels.
+            per_pixel: per_u.mul_proved(crate::lit!(S, 1.0 / SPAN_PIXELS as f64)),
+            per_prism_index,
+        };
+        Ok((at, prism_per_kelvin))
+    }
+
+    /// The stretch `stretch` at the prism index `n_prism` of `degree`.
+    fn make_span(&self, degree: i32, stretch: i32, n_prism: S) -> Result<PositionSpan<S>, Error> {
+        let start = stretch.checked_shl(SPAN_LOG2).ok_or(Error::Overflow)?;
+        let end = start.checked_add(1 << SPAN_LOG2).ok_or(Error::Overflow)?;
+        let a = self.geometry.index_at(start, n_prism)?;
+        let b = self.geometry.index_at(end, n_prism)?;
+        // Slopes per stretch.
+        let h = S::from_i32(SPAN_PIXELS)?;
+        let (d0, d1) = (a.per_pixel.mul(h)?, b.per_pixel.mul(h)?);
+        let rise = b.index.sub(a.index)?;
+        // Hermite: c2 = 3·rise − 2·d0 − d1, c3 = d0 + d1 − 2·rise.
+        let c2 = rise.mul(crate::lit!(S, 3.0))?.sub(d0.add(d0)?)?.sub(d1)?;
+        let c3 = d0.add(d1)?.sub(rise.add(rise)?)?;
+        Ok(PositionSpan {
+            degree,
+            stretch,
+            n_prism,
+            c: [a.index, d0, c2, c3],
+            per_prism: [a.per_prism_index, b.per_prism_index],
+        })
+    }
+
     /// nD from the corrected index at the LED wavelength, and dnD/dn.
     fn to_nd(&self, index_at_led: S) -> Result<(S, S), Error> {
         if let Some(r) = self.dispersion_ratio {
@@ -552,7 +666,7 @@ where
     /// value from it without converting back from nD.
     pub fn read(&mut self, avg: &Averaged<S>) -> Result<Reading<S>, Error> {
         let t = avg.temperature_c;
-        let (at, prism_per_kelvin) = self.raw_index(avg.position, t)?;
+        let (at, prism_per_kelvin) = self.raw_index_near(avg.position, t)?;
         let raw = at.index;
         let index_at_led = self.correction.apply(raw)?;
         let (nd, nd_per_led) = self.to_nd(index_at_led)?;
