@@ -21,7 +21,9 @@
 //! Work that depends only on the instrument's state is done when that state
 //! changes: the dispersion's refractivity ratio at the LED once at
 //! construction, the prism's index at the LED once per whole degree of
-//! temperature drift (a reading takes the line through it), and, through
+//! temperature drift (a reading takes the line through it), the geometry over
+//! the 8-pixel stretch of the array the boundary lies in (a cubic in the
+//! position, remade when a reading falls elsewhere), and, through
 //! [`SampleCompensation::compensate_prepared`], whatever the sample model
 //! prepares: [`SucroseRows`](super::sucrose_rows::SucroseRows) lays the
 //! sucrose compensation out once per whole-degree interval (114 corrections
