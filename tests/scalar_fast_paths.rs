@@ -255,3 +255,35 @@ proptest! {
         check_pow2(num, k);
     }
 }
+
+#[test]
+fn i8f24_square_root_is_the_rounded_integer_root() {
+    // Reference: `u64::isqrt` of the bits shifted by frac + 2, rounded.
+    let mut x = 0x2545_F491_4F6C_DD1Du64;
+    let mut check = |bits: i32| {
+        let want = ((((bits as u64) << 26).isqrt() + 1) >> 1) as i32;
+        let got = Scalar::sqrt(I8F24::from_bits(bits)).unwrap();
+        assert_eq!(got.to_bits(), want, "√{bits} (bits)");
+    };
+    for bits in [
+        0,
+        1,
+        2,
+        3,
+        4,
+        1 << 24,
+        (1 << 24) - 1,
+        i32::MAX,
+        i32::MAX - 1,
+    ] {
+        check(bits);
+    }
+    for _ in 0..200_000 {
+        x ^= x << 13;
+        x ^= x >> 7;
+        x ^= x << 17;
+        check((x >> 33) as i32);
+        check((x >> 40) as i32);
+    }
+    assert!(Scalar::sqrt(I8F24::from_bits(-1)).is_err());
+}

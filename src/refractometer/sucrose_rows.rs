@@ -294,8 +294,10 @@ impl<S: Scalar> SampleCompensation<S> for SucroseRows<S> {
             return Err(Error::NotFinite(Quantity::Temperature));
         }
         let (lo, hi, ft, per_kelvin_factor) = around(temperature_c)?;
-        if self.span != Some((lo, hi)) {
-            self.prepare(lo, hi)?;
+        // A row that cannot be made leaves the reading to the compensation
+        // itself (which then gives its own answer or error).
+        if self.span != Some((lo, hi)) && self.prepare(lo, hi).is_err() {
+            return self.exact.compensate(nd, temperature_c);
         }
         let (lo_row, hi_row) = (&self.lower, &self.upper);
         // Ranges, from here to `brix20` (unchecked arithmetic, `*_proved`):

@@ -108,7 +108,7 @@ macro_rules! fixed_scalar {
             fn mul_proved(self, rhs: Self) -> Self {
                 if $total == 32 {
                     // As `mul`, saturated instead of checked.
-                    let q = match super::wide::mul_shift_i32(
+                    let q = match long_arith::mul_shift_i32(
                         self.to_bits() as i32,
                         rhs.to_bits() as i32,
                         $frac,
@@ -154,7 +154,7 @@ macro_rules! fixed_scalar {
                     // checked form pays for a 64-bit overflow test, about 150
                     // instructions on a Cortex-M0.
                     // (`as i32` is exact here: 32-bit bits.)
-                    return super::wide::mul_shift_i32(
+                    return long_arith::mul_shift_i32(
                         self.to_bits() as i32,
                         rhs.to_bits() as i32,
                         $frac,
@@ -193,19 +193,9 @@ macro_rules! fixed_scalar {
                 if self < Self::ZERO {
                     return Err(Error::MathDomain);
                 }
-                // sqrt(b / 2^f) * 2^f = sqrt(b * 2^f); two extra bits round to nearest.
-                // In 64 bits where the shifted value fits (I8F24): a 128-bit
-                // root costs a core without 64-bit hardware far more.
-                if $total + $frac + 2 <= 64 {
-                    let wide = (self.to_bits() as u64) << ($frac + 2);
-                    let root = match super::wide::isqrt_below_2_58(wide) {
-                        Some(r) => u64::from(r),
-                        None => wide.isqrt(),
-                    };
-                    return narrow(i128::from((root + 1) >> 1));
-                }
-                // Wider (I32F32): a digit-by-digit root in 32- and 64-bit
-                // words, the frac + 2 extra bits as zero pairs.
+                // sqrt(b / 2^f) * 2^f = sqrt(b * 2^f); two extra bits round to
+                // nearest: a digit-by-digit root in 32- and 64-bit words, the
+                // frac + 2 extra bits as zero pairs (every fixed-point type).
                 let r = long_arith::sqrt_shl(self.to_bits() as u64, $frac / 2 + 1);
                 narrow(i128::from((r + 1) >> 1))
             }

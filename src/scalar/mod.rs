@@ -18,7 +18,6 @@ mod fixed_math;
 mod fixed_point;
 mod float;
 mod newton;
-mod wide;
 
 use crate::error::{Error, Quantity};
 use core::fmt::Debug;

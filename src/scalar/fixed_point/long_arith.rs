@@ -1,5 +1,5 @@
-//! Product, quotient and square root of 64-bit fixed-point bits without 128-bit
-//! multiplication or division.
+//! Product, quotient and square root of fixed-point bits without 128-bit
+//! multiplication or division, and the 32-bit types' product in 32-bit words.
 //!
 //! A 32-bit core without a divider or a 32×32→64 multiplier (Cortex-M0) pays
 //! for an `i128` product with an overflow test on 128 bits and for an `i128`
@@ -11,6 +11,37 @@
 //! `floor(a·b / 2^frac)`, `trunc(a·2^frac / b)` and `floor(√(x·4^k))`.
 
 use core::ops::{BitOr, Shl, Sub};
+
+/// `⌊a·b / 2^frac⌋` for `0 < frac < 32`, as `Ok` when it fits an `i32`;
+/// `Err(negative)` when it does not, saying which way it overflowed. In
+/// 32-bit words throughout: four 16×16 partial products, carries by
+/// comparison, the shift across the two words.
+#[inline(always)]
+pub(super) fn mul_shift_i32(a: i32, b: i32, frac: u32) -> Result<i32, bool> {
+    let (al, ah) = (a as u32 & 0xFFFF, a >> 16);
+    let (bl, bh) = (b as u32 & 0xFFFF, b >> 16);
+    // a·b = ah·bh·2^32 + (ah·bl + al·bh)·2^16 + al·bl, each term in range
+    // of its word: |ah·bl|, |al·bh| < 2^31, ah·bh ≤ 2^30, al·bl < 2^32.
+    let low = al.wrapping_mul(bl);
+    let high = ah.wrapping_mul(bh);
+    let m1 = ah.wrapping_mul(bl as i32);
+    let m2 = (al as i32).wrapping_mul(bh);
+    let low1 = low.wrapping_add((m1 as u32) << 16);
+    let high1 = high
+        .wrapping_add(m1 >> 16)
+        .wrapping_add(i32::from(low1 < low));
+    let low2 = low1.wrapping_add((m2 as u32) << 16);
+    let high2 = high1
+        .wrapping_add(m2 >> 16)
+        .wrapping_add(i32::from(low2 < low1));
+    // Bits 63..(31 + frac) of the product must all equal its sign.
+    let top = high2 >> (frac - 1);
+    if top == 0 || top == -1 {
+        Ok(((high2 as u32) << (32 - frac) | (low2 >> frac)) as i32)
+    } else {
+        Err(high2 < 0)
+    }
+}
 
 /// `floor(a·b / 2^frac)`, or `None` outside `i64` (`frac ≤ 64`).
 #[inline]
@@ -114,5 +145,50 @@ where
         ((root << 1) | T::from(1), rem - trial)
     } else {
         (root << 1, rem)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::mul_shift_i32;
+
+    #[test]
+    fn shifted_32_bit_products_are_exact() {
+        let check = |a: i32, b: i32, frac: u32| {
+            let p = (i64::from(a) * i64::from(b)) >> frac;
+            let want = i32::try_from(p).map_err(|_| p < 0);
+            assert_eq!(mul_shift_i32(a, b, frac), want, "{a} {b} {frac}");
+        };
+        let edges = [
+            0,
+            1,
+            -1,
+            0xFFFF,
+            -0xFFFF,
+            0x10000,
+            -0x10000,
+            0x7FFF_FFFF,
+            i32::MIN,
+            1 << 24,
+            -(1 << 24),
+            3 << 23,
+        ];
+        for frac in [1, 16, 24, 31] {
+            for &a in &edges {
+                for &b in &edges {
+                    check(a, b, frac);
+                }
+            }
+        }
+        let mut x = 0x9E37_79B9_7F4A_7C15u64;
+        for _ in 0..200_000 {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            let (a, b) = (x as i32, (x >> 32) as i32);
+            check(a, b, 24);
+            check(a >> 9, b >> 5, 24);
+            check(a >> 17, b, 24);
+        }
     }
 }
