@@ -260,7 +260,7 @@ proptest! {
 fn i8f24_square_root_is_the_rounded_integer_root() {
     // Reference: `u64::isqrt` of the bits shifted by frac + 2, rounded.
     let mut x = 0x2545_F491_4F6C_DD1Du64;
-    let mut check = |bits: i32| {
+    let check = |bits: i32| {
         let want = ((((bits as u64) << 26).isqrt() + 1) >> 1) as i32;
         let got = Scalar::sqrt(I8F24::from_bits(bits)).unwrap();
         assert_eq!(got.to_bits(), want, "√{bits} (bits)");
