@@ -269,3 +269,53 @@ fn the_parser_reads_nested_use_trees() {
         ]
     );
 }
+
+/// The reading side: what a refractometer firmware links.
+const READING_SIDE: &str = "refractometer::reading";
+
+/// What the reading side may import besides itself: the numeric core.
+fn reading_side_may_import(to: &str) -> bool {
+    to == READING_SIDE
+        || to.starts_with("refractometer::reading::")
+        || matches!(top(to), "scalar" | "error")
+}
+
+#[test]
+fn the_reading_side_never_imports_the_model_side() {
+    let graph = import_graph();
+    let reading: Vec<&String> = graph
+        .keys()
+        .filter(|m| *m == READING_SIDE || m.starts_with("refractometer::reading::"))
+        .collect();
+    // Not vacuous: the side exists, with its finder, cells, evaluators and meter.
+    for part in ["boundary", "brix_cells", "prepared", "meter", "record", "store"] {
+        let m = format!("{READING_SIDE}::{part}");
+        assert!(graph.contains_key(&m), "{m} is missing from the reading side");
+    }
+    let mut bad = Vec::new();
+    for from in reading {
+        for to in &graph[from] {
+            if !reading_side_may_import(to) {
+                bad.push(format!("{from} -> {to}"));
+            }
+        }
+    }
+    assert!(
+        bad.is_empty(),
+        "the reading side imports the model side (the bridge is data, made by refractometer::prepare): {bad:?}"
+    );
+    // And the bridge is used: the model side's preparation imports both sides.
+    let prepare = &graph["refractometer::prepare"];
+    assert!(prepare.iter().any(|t| t.starts_with(READING_SIDE)));
+    assert!(prepare.iter().any(|t| t == "refractometer::compensation"));
+}
+
+#[test]
+fn the_reading_side_rule_catches_a_model_import() {
+    // The predicate itself: a model module is refused, the core allowed.
+    assert!(!reading_side_may_import("refractometer::compensation"));
+    assert!(!reading_side_may_import("optics::refraction"));
+    assert!(!reading_side_may_import("media::water"));
+    assert!(reading_side_may_import("scalar"));
+    assert!(reading_side_may_import("refractometer::reading::boundary"));
+}

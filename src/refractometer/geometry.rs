@@ -23,7 +23,7 @@
 
 use crate::error::{Error, Quantity};
 use crate::optics::refraction::check_index;
-use crate::refractometer::boundary::SUBPIXEL;
+use crate::refractometer::reading::boundary::SUBPIXEL;
 use crate::scalar::Scalar;
 
 /// Sub-pixel positions are scaled by this many pixels before entering a
@@ -218,39 +218,4 @@ impl<S: Scalar> Geometry<S> {
     }
 }
 
-/// Empirical correction fitted to standards: `n' = c0 + c1·n + c2·n²`, applied
-/// to the geometry's index. Three coefficients in fixed memory (the calibration
-/// record stores exactly these).
-#[derive(Clone, Copy, Debug, PartialEq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct Correction<S> {
-    /// Constant term.
-    pub c0: S,
-    /// Linear term (1 for an offset-only correction).
-    pub c1: S,
-    /// Quadratic term (0 unless three standards were used).
-    pub c2: S,
-}
-
-impl<S: Scalar> Correction<S> {
-    /// No correction.
-    pub fn identity() -> Self {
-        Correction {
-            c0: S::ZERO,
-            c1: S::ONE,
-            c2: S::ZERO,
-        }
-    }
-
-    /// The corrected index, `c0 + n·(c1 + c2·n)`.
-    pub fn apply(&self, n: S) -> Result<S, Error> {
-        let n = check_index(n)?;
-        let out = self.c2.mul_add(n, self.c1)?.mul_add(n, self.c0)?;
-        check_index(out)
-    }
-
-    /// Derivative `c1 + 2·c2·n`, for uncertainty propagation.
-    pub fn slope(&self, n: S) -> Result<S, Error> {
-        self.c2.mul(n)?.mul(S::TWO)?.add(self.c1)
-    }
-}
+pub use crate::refractometer::reading::record::Correction;

@@ -170,7 +170,6 @@ pub trait TradeScale<S: Scalar> {
     }
 }
 
-pub mod boundary;
 pub mod brewing;
 pub mod calibration;
 pub mod compensation;
@@ -179,10 +178,9 @@ pub mod freezing;
 pub mod geometry;
 pub mod glycerol;
 pub mod instrument;
-pub mod record;
+pub mod prepare;
+pub mod reading;
 pub mod scales;
-pub mod store;
-pub mod sucrose_cells;
 pub mod sucrose_rows;
 pub mod sucrose_temperature;
 pub mod syrup;
@@ -190,3 +188,6 @@ pub mod table;
 pub mod thermistor;
 pub mod urea;
 pub mod wine;
+
+// The reading side's modules at the paths they have always had.
+pub use reading::{boundary, record, store};

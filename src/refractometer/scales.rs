@@ -29,6 +29,7 @@
 //! assert!((brix.to_num::<f64>() - 10.0).abs() < 0.005);
 //! ```
 
+use super::reading::brix_cells::ICUMSA_SUCROSE_ND;
 use super::table::{LinearTable, UniformCubicTable};
 use super::{SampleDomain, TradeScale};
 use crate::error::{Error, Quantity};
@@ -54,10 +55,7 @@ pub(crate) const ICUMSA_SUCROSE: UniformCubicTable = UniformCubicTable {
     x0: 0,
     step: 5,
     x_den: 1,
-    ys: &[
-        133299, 134026, 134782, 135568, 136384, 137233, 138115, 139032, 139986, 140978, 142009,
-        143080, 144193, 145348, 146546, 147787, 149071, 150398,
-    ],
+    ys: &ICUMSA_SUCROSE_ND,
     y_den: 100_000,
 };
 

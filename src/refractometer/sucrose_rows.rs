@@ -22,8 +22,8 @@
 //! State: 2 × 20 values.
 
 use super::compensation::SucroseCompensation;
+use super::reading::brix_cells::{brix_of_nd, nd_of_brix};
 use super::scales::{APPARENT_BRIX_MAX, APPARENT_BRIX_MIN, SucroseBrix, apparent_brix};
-use super::sucrose_cells::{brix_of_nd, nd_of_brix};
 use super::sucrose_temperature::{MODEL_MAX_C, MODEL_MIN_C, UNCERTAINTY_PER_KELVIN};
 use super::{
     Compensated, CompensationBasis, CompensationNote, SampleCompensation, SampleDomain, TradeScale,

@@ -11,11 +11,20 @@
 //! exact inverse), then one chord step of Newton's method (within 4e-8).
 //! `tests/sucrose_rows.rs` checks both against the table's own reading.
 
-use super::scales::ICUMSA_SUCROSE;
 use crate::scalar::{Format, Scalar, literal_bits, split_floor};
 
+/// The ICUMSA sucrose table, nD(20 °C, 589.3 nm, air) × 10⁵ at 0, 5, …, 85
+/// %Brix: the data both sides read (sources in
+/// [`SucroseBrix`](crate::refractometer::scales::SucroseBrix)'s table docs).
+pub(crate) const ICUMSA_SUCROSE_ND: [i32; 18] = [
+    133299, 134026, 134782, 135568, 136384, 137233, 138115, 139032, 139986, 140978, 142009, 143080,
+    144193, 145348, 146546, 147787, 149071, 150398,
+];
+/// Denominator of [`ICUMSA_SUCROSE_ND`].
+pub(crate) const ICUMSA_SUCROSE_DEN: i32 = 100_000;
+
 /// Entries of the table.
-const ENTRIES: usize = ICUMSA_SUCROSE.ys.len();
+const ENTRIES: usize = ICUMSA_SUCROSE_ND.len();
 /// Cells (5 %Brix each).
 pub(crate) const CELLS: usize = ENTRIES - 1;
 
@@ -28,8 +37,8 @@ type Cell = [f64; 8];
 /// as the table's reading (the cubic through four entries, shifted to the
 /// cell's lower entry).
 const fn cells() -> [Cell; CELLS] {
-    let ys = ICUMSA_SUCROSE.ys;
-    let den = ICUMSA_SUCROSE.y_den as f64;
+    let ys = ICUMSA_SUCROSE_ND;
+    let den = ICUMSA_SUCROSE_DEN as f64;
     let mut out = [[0.0; 8]; CELLS];
     let mut k = 0;
     while k < CELLS {
@@ -148,7 +157,7 @@ fn cell<S: Scalar>(k: usize) -> Option<[S; 8]> {
 /// nD at 20 °C of `brix` %Brix, 0–85, and dnD/d%Brix there (the cubic's
 /// tangent). `None` outside 0–85 or where an operation fails: the caller
 /// reads the table itself.
-pub(crate) fn nd_of_brix<S: Scalar>(brix: S) -> Option<(S, S)> {
+pub fn nd_of_brix<S: Scalar>(brix: S) -> Option<(S, S)> {
     if !(brix >= S::ZERO && brix <= crate::lit!(S, 85.0)) {
         return None;
     }
@@ -174,11 +183,11 @@ pub(crate) fn nd_of_brix<S: Scalar>(brix: S) -> Option<(S, S)> {
 
 /// %Brix of `nd` on the 20 °C scale inside the table (nD from its first to
 /// its last entry); `None` outside or where an operation fails.
-pub(crate) fn brix_of_nd<S: Scalar>(nd: S) -> Option<S> {
-    let first = crate::lit!(S, ICUMSA_SUCROSE.ys[0] as f64 / ICUMSA_SUCROSE.y_den as f64);
+pub fn brix_of_nd<S: Scalar>(nd: S) -> Option<S> {
+    let first = crate::lit!(S, ICUMSA_SUCROSE_ND[0] as f64 / ICUMSA_SUCROSE_DEN as f64);
     let top = crate::lit!(
         S,
-        ICUMSA_SUCROSE.ys[ENTRIES - 1] as f64 / ICUMSA_SUCROSE.y_den as f64
+        ICUMSA_SUCROSE_ND[ENTRIES - 1] as f64 / ICUMSA_SUCROSE_DEN as f64
     );
     if !(nd >= first && nd <= top) {
         return None;
@@ -213,4 +222,117 @@ pub(crate) fn brix_of_nd<S: Scalar>(nd: S) -> Option<S> {
             .ok()?
             .add_proved(s.mul_proved(crate::lit!(S, 5.0))),
     )
+}
+
+/// Slope dnD/d%Brix and curvature d²nD/d%Brix² of the table's end cubics
+/// (four-point Lagrange derivatives), at 0 and at 85 %Brix: the parabolas a
+/// reading continues along beyond the table's ends (water read warm, a dense
+/// syrup read cold).
+const fn end_parabola(top: bool) -> (f64, f64, f64) {
+    let y = ICUMSA_SUCROSE_ND;
+    let d = ICUMSA_SUCROSE_DEN as f64;
+    let n = ENTRIES;
+    let (y0, y1, y2, y3, sign) = if top {
+        (y[n - 1], y[n - 2], y[n - 3], y[n - 4], -1.0)
+    } else {
+        (y[0], y[1], y[2], y[3], 1.0)
+    };
+    let (y0, y1, y2, y3) = (y0 as f64 / d, y1 as f64 / d, y2 as f64 / d, y3 as f64 / d);
+    let slope = sign * (-11.0 * y0 + 18.0 * y1 - 9.0 * y2 + 2.0 * y3) / 30.0;
+    let curvature = (2.0 * y0 - 5.0 * y1 + 4.0 * y2 - y3) / 25.0;
+    (y0, slope, curvature)
+}
+
+/// Lowest %Brix read at temperature (water read at 40 °C is about −1.7).
+pub const APPARENT_MIN: f64 = -2.5;
+/// Highest %Brix read at temperature (85 %Brix read at 5 °C is about 85.9).
+pub const APPARENT_MAX: f64 = 87.0;
+
+/// nD at 20 °C for `brix` from [`APPARENT_MIN`] to [`APPARENT_MAX`]: the
+/// table's cubic inside 0–85, its end parabolas beyond; with the slope.
+pub fn nd_of_apparent<S: Scalar>(brix: S) -> Option<(S, S)> {
+    if brix >= S::ZERO && brix <= crate::lit!(S, 85.0) {
+        return nd_of_brix(brix);
+    }
+    if !(brix >= crate::lit!(S, APPARENT_MIN) && brix <= crate::lit!(S, APPARENT_MAX)) {
+        return None;
+    }
+    let top = brix > S::ZERO;
+    let (n0, slope, curvature) = if top {
+        const E: (f64, f64, f64) = end_parabola(true);
+        (
+            crate::lit!(S, E.0),
+            crate::lit!(S, E.1),
+            crate::lit!(S, E.2),
+        )
+    } else {
+        const E: (f64, f64, f64) = end_parabola(false);
+        (
+            crate::lit!(S, E.0),
+            crate::lit!(S, E.1),
+            crate::lit!(S, E.2),
+        )
+    };
+    let b = if top {
+        brix.sub_proved(crate::lit!(S, 85.0))
+    } else {
+        brix
+    };
+    // Ranges: |b| ≤ 2.5, slope under 3e-3, curvature under 1e-4.
+    let half_bend = curvature.mul_proved(S::HALF).mul_proved(b);
+    let n = n0.add_proved(b.mul_proved(slope.add_proved(half_bend)));
+    Some((n, slope.add_proved(curvature.mul_proved(b))))
+}
+
+/// %Brix of `nd` read at temperature, on the 20 °C scale, from
+/// [`APPARENT_MIN`] to [`APPARENT_MAX`]: [`brix_of_nd`] inside the table, the
+/// end parabolas' root beyond (`b = u − k·u²/2 + k²·u³/2 − 5k³·u⁴/8`, `u =
+/// (n − n_end)/slope`, `k = curvature/slope`: under 1e-5 %Brix from the
+/// exact root over 2.5 %Brix).
+pub fn apparent_of_nd<S: Scalar>(nd: S) -> Option<S> {
+    if let Some(b) = brix_of_nd(nd) {
+        return Some(b);
+    }
+    const LOW: (f64, f64, f64) = end_parabola(false);
+    const HIGH: (f64, f64, f64) = end_parabola(true);
+    // The end parabola's own reach: 2.5 %Brix beyond 0 and 2 beyond 85.
+    let (n0, per_slope, k, base, lo, hi) = if nd < crate::lit!(S, LOW.0) {
+        (
+            crate::lit!(S, LOW.0),
+            crate::lit!(S, 0.01 / LOW.1),
+            crate::lit!(S, LOW.2 / LOW.1),
+            S::ZERO,
+            crate::lit!(S, APPARENT_MIN),
+            S::ZERO,
+        )
+    } else {
+        (
+            crate::lit!(S, HIGH.0),
+            crate::lit!(S, 0.01 / HIGH.1),
+            crate::lit!(S, HIGH.2 / HIGH.1),
+            crate::lit!(S, 85.0),
+            S::ZERO,
+            crate::lit!(S, APPARENT_MAX - 85.0),
+        )
+    };
+    // u = (n − n_end)/slope, checked to ±3 %Brix before the series (the
+    // difference is under 0.01 nD: nd was checked finite and near the
+    // table by the caller's range, and 1/slope is under 800).
+    let dn = nd.sub(n0).ok()?;
+    if dn.abs().ok()? > crate::lit!(S, 0.01) {
+        return None;
+    }
+    // u = (100·dn)·(0.01/slope): 1/slope (about 700) is beyond I8F24.
+    let u = dn.mul_proved(crate::lit!(S, 100.0)).mul_proved(per_slope);
+    let ku = k.mul_proved(u);
+    // Ranges: |u| under 8, |k·u| under 0.2.
+    let five_eighths = crate::lit!(S, 0.625);
+    let series = S::ONE.sub_proved(ku.mul_proved(
+        S::HALF.sub_proved(ku.mul_proved(S::HALF.sub_proved(five_eighths.mul_proved(ku)))),
+    ));
+    let b = u.mul_proved(series);
+    if b < lo || b > hi {
+        return None;
+    }
+    Some(base.add_proved(b))
 }

@@ -97,8 +97,8 @@
 //! # }
 //! ```
 
+use super::record::{CalibrationRecord, RECORD_LEN, Slot, SlotChoice, choose_slots};
 use crate::error::{Error, StorageFault};
-use crate::refractometer::record::{CalibrationRecord, RECORD_LEN, Slot, SlotChoice, choose_slots};
 use embedded_storage::Storage;
 use embedded_storage::nor_flash::{NorFlash, NorFlashError, NorFlashErrorKind};
 
@@ -107,7 +107,7 @@ const RECORD_SPAN: u32 = RECORD_LEN as u32;
 
 mod sealed {
     use crate::error::Error;
-    use crate::refractometer::record::RECORD_LEN;
+    use crate::refractometer::reading::record::RECORD_LEN;
 
     /// What the store does with a memory; implemented by the two adapters only.
     pub trait Memory {

@@ -36,7 +36,6 @@
 //! ```
 
 use crate::error::{Error, Quantity};
-use crate::refractometer::geometry::Correction;
 use crate::scalar::Scalar;
 use crate::scalar::split_floor;
 use fixed::types::I32F32;
@@ -82,6 +81,52 @@ pub struct CalibrationRecord {
     pub zero_temperature_mc: i32,
     /// LED wavelength the calibration belongs to, in pm.
     pub led_wavelength_pm: u32,
+}
+
+/// Empirical correction fitted to standards: `n' = c0 + c1·n + c2·n²`, applied
+/// to the geometry's index. Three coefficients in fixed memory (the calibration
+/// record stores exactly these).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Correction<S> {
+    /// Constant term.
+    pub c0: S,
+    /// Linear term (1 for an offset-only correction).
+    pub c1: S,
+    /// Quadratic term (0 unless three standards were used).
+    pub c2: S,
+}
+
+impl<S: Scalar> Correction<S> {
+    /// No correction.
+    pub fn identity() -> Self {
+        Correction {
+            c0: S::ZERO,
+            c1: S::ONE,
+            c2: S::ZERO,
+        }
+    }
+
+    /// The corrected index, `c0 + n·(c1 + c2·n)`.
+    pub fn apply(&self, n: S) -> Result<S, Error> {
+        let n = check_index(n)?;
+        let out = self.c2.mul_add(n, self.c1)?.mul_add(n, self.c0)?;
+        check_index(out)
+    }
+
+    /// Derivative `c1 + 2·c2·n`, for uncertainty propagation.
+    pub fn slope(&self, n: S) -> Result<S, Error> {
+        self.c2.mul(n)?.mul(S::TWO)?.add(self.c1)
+    }
+}
+
+/// A refractive index checked as the optics checks one: finite, 1 to 4.5.
+fn check_index<S: Scalar>(n: S) -> Result<S, Error> {
+    n.check_range(
+        Quantity::RefractiveIndex,
+        crate::lit!(S, 1.0),
+        crate::lit!(S, 4.5),
+    )
 }
 
 fn field<const N: usize>(bytes: &[u8], at: usize) -> Result<[u8; N], Error> {
@@ -258,7 +303,7 @@ impl CalibrationRecord {
     /// assert!((n.to_num::<f64>() - 1.3330).abs() < 1e-6);
     /// ```
     pub fn correct<S: Scalar>(&self, n: S) -> Result<S, Error> {
-        let n = crate::optics::refraction::check_index(n)?;
+        let n = check_index(n)?;
         self.correction::<S>()?
             .apply(n)
             .map_err(|_| Error::OutOfRange(Quantity::RefractiveIndex))
