@@ -288,9 +288,19 @@ fn the_reading_side_never_imports_the_model_side() {
         .filter(|m| *m == READING_SIDE || m.starts_with("refractometer::reading::"))
         .collect();
     // Not vacuous: the side exists, with its finder, cells, evaluators and meter.
-    for part in ["boundary", "brix_cells", "prepared", "meter", "record", "store"] {
+    for part in [
+        "boundary",
+        "brix_cells",
+        "prepared",
+        "meter",
+        "record",
+        "store",
+    ] {
         let m = format!("{READING_SIDE}::{part}");
-        assert!(graph.contains_key(&m), "{m} is missing from the reading side");
+        assert!(
+            graph.contains_key(&m),
+            "{m} is missing from the reading side"
+        );
     }
     let mut bad = Vec::new();
     for from in reading {

@@ -10,6 +10,7 @@
 use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::Water;
 use embedded_optics::media::{IndexReference, Medium};
+use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::calibration::{standard_reference, water_reference};
 use embedded_optics::refractometer::compensation::SucroseCompensation;
@@ -23,7 +24,6 @@ use embedded_optics::refractometer::reading::tables::{JUICE_LAB_GRID, OIV_GRID};
 use embedded_optics::refractometer::scales::{SucroseBrix, apparent_brix};
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
-use embedded_optics::refractometer::TradeScale;
 use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};

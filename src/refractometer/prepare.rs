@@ -40,10 +40,10 @@ pub const MAP_SEGMENT_LOG2: u8 = 5;
 /// Prism temperature the map's cubics are for, °C.
 pub const MAP_REFERENCE_C: f64 = 20.0;
 /// Codes between entries of the thermistor table, as a power of two.
-pub const CODE_STEP_LOG2: u8 = 3;
+pub const CODE_STEP_LOG2: u8 = 4;
 /// The thermistor table covers these temperatures, °C (the compensation's
 /// range with a margin).
-pub const CODE_RANGE_C: (f64, f64) = (-5.0, 50.0);
+pub const CODE_RANGE_C: (f64, f64) = (0.0, 45.0);
 
 /// `x · 2^q` rounded to an `i32`; `Overflow` if it does not fit.
 fn to_q(x: f64, q: i32) -> Result<i32, Error> {

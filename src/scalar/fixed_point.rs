@@ -107,16 +107,12 @@ macro_rules! fixed_scalar {
             #[inline(always)]
             fn mul_proved(self, rhs: Self) -> Self {
                 if $total == 32 {
-                    // As `mul`, saturated instead of checked.
-                    let q = match long_arith::mul_shift_i32(
+                    // As `mul`, saturated instead of checked, out of line.
+                    let q = long_arith::mul_shift_i32_saturating(
                         self.to_bits() as i32,
                         rhs.to_bits() as i32,
                         $frac,
-                    ) {
-                        Ok(v) => v,
-                        Err(true) => i32::MIN,
-                        Err(false) => i32::MAX,
-                    };
+                    );
                     return <$t>::from_bits(q as $inner);
                 }
                 match self.mul(rhs) {
@@ -173,7 +169,14 @@ macro_rules! fixed_scalar {
                     return Err(Error::DivisionByZero);
                 }
                 if $total == 32 {
-                    return self.checked_div(rhs).ok_or(Error::Overflow);
+                    // The `fixed` crate's quotient (toward zero), out of line.
+                    return long_arith::div_shift_i32(
+                        self.to_bits() as i32,
+                        rhs.to_bits() as i32,
+                        $frac,
+                    )
+                    .map(|q| <$t>::from_bits(q as $inner))
+                    .ok_or(Error::Overflow);
                 }
                 // The `fixed` crate's quotient (rounded toward zero) by a
                 // 64-bit long division instead of a 128-bit one.

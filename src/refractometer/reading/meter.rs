@@ -234,15 +234,14 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         let n = 1i64 << log2;
         let position = i64::from(self.first) + ((self.deviation_sum + n / 2) >> log2);
         let position = i32::try_from(position).map_err(|_| Error::Overflow)?;
-        // Type B: √(Σu²)/n. Type A: √(Σd² − (Σd)²/n) / √(n(n − 1)).
+        // Type B: √(Σu²)/n. Type A: √((Σd² − (Σd)²/n)/n) · 1/√(n − 1), the
+        // last factor from a table (n is 2, 4, 8 or 16): no division.
         let type_b = isqrt_u64(self.variance_sum.unsigned_abs()) >> log2;
-        let type_a = if n > 1 {
-            let ss = self.deviation_squares - ((self.deviation_sum * self.deviation_sum) >> log2);
-            let per = (n * (n - 1)).unsigned_abs();
-            isqrt_u64(ss.unsigned_abs() / per)
-        } else {
-            0
-        };
+        let ss = self.deviation_squares - ((self.deviation_sum * self.deviation_sum) >> log2);
+        let rms = isqrt_u64(ss.unsigned_abs() >> log2);
+        // 2^16/√(n − 1) for n = 2, 4, 8, 16; none for one frame.
+        const PER_ROOT: [u64; 5] = [0, 65_536, 37_837, 24_770, 16_921];
+        let type_a = (rms * PER_ROOT.get(log2 as usize).copied().unwrap_or(0)) >> 16;
         let t_mean = i32::try_from(self.temperature_sum >> log2).map_err(|_| Error::Overflow)?;
         let temperature = S::from_ratio_pow2(t_mean, 16)?;
         Ok(Some(Mean {
@@ -350,12 +349,15 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
     /// Adds a reading to the settling window; settled when the window is
     /// full and spreads within the design's bands.
     fn settle(&mut self, nd20: S, t: S) -> bool {
-        let len = usize::from(self.design.settle_readings).min(SETTLE_WINDOW_MAX);
-        let next = usize::from(self.window_next) % len;
+        let len = usize::from(self.design.settle_readings).clamp(2, SETTLE_WINDOW_MAX);
+        let next = match usize::from(self.window_next) {
+            k if k < len => k,
+            _ => 0,
+        };
         if let Some(slot) = self.window.get_mut(next) {
             *slot = (nd20, t);
         }
-        self.window_next = ((next + 1) % len) as u8;
+        self.window_next = if next + 1 < len { next as u8 + 1 } else { 0 };
         self.window_len = (usize::from(self.window_len) + 1).min(len) as u8;
         if usize::from(self.window_len) < len {
             return false;

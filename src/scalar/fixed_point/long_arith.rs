@@ -43,6 +43,31 @@ pub(super) fn mul_shift_i32(a: i32, b: i32, frac: u32) -> Result<i32, bool> {
     }
 }
 
+/// [`mul_shift_i32`] saturated at the `i32` range, out of line: the
+/// range-proved products of a reading path call one copy (about 90 bytes on
+/// a Cortex-M0) instead of inlining it at every product (about 70 bytes
+/// each), for about ten instructions of call per product.
+#[inline(never)]
+pub(super) fn mul_shift_i32_saturating(a: i32, b: i32, frac: u32) -> i32 {
+    match mul_shift_i32(a, b, frac) {
+        Ok(v) => v,
+        Err(true) => i32::MIN,
+        Err(false) => i32::MAX,
+    }
+}
+
+/// `trunc(a·2^frac / b)` for 32-bit fixed point, `None` when it does not fit
+/// an `i32` (`b` non-zero, checked by the caller), out of line: one 64-bit
+/// division per image instead of one inlined at every quotient.
+#[inline(never)]
+pub(super) fn div_shift_i32(a: i32, b: i32, frac: u32) -> Option<i32> {
+    if b == 0 {
+        return None;
+    }
+    let q = (i64::from(a) << frac) / i64::from(b);
+    i32::try_from(q).ok()
+}
+
 /// `floor(a·b / 2^frac)`, or `None` outside `i64` (`frac ≤ 64`).
 #[inline]
 pub(super) fn mul_shr(a: i64, b: i64, frac: u32) -> Option<i64> {
