@@ -36,7 +36,7 @@ pub const WATER_FIRST_C: i16 = 4;
 /// ... for this many degrees (4 to 41 °C: the compensation's 4.5–40.5 °C).
 pub const WATER_ENTRIES: usize = 38;
 /// Pixels per segment of the position map, as a power of two.
-pub const MAP_SEGMENT_LOG2: u8 = 5;
+pub const MAP_SEGMENT_LOG2: u8 = 6;
 /// Prism temperature the map's cubics are for, °C.
 pub const MAP_REFERENCE_C: f64 = 20.0;
 /// Codes between entries of the thermistor table, as a power of two.

@@ -78,6 +78,21 @@ macro_rules! fixed_scalar {
                 let q = (2 * n + d.signum() * n.signum() * d.abs()) / (2 * d);
                 narrow(q)
             }
+            #[inline(always)]
+            fn from_scaled_proved(num: i32, log2_den: u32) -> Self {
+                let up = $frac - log2_den.min(31) as i32;
+                let bits = if up >= 0 {
+                    i64::from(num) << up
+                } else {
+                    // Half a unit of the last kept bit added, then dropped.
+                    ((i64::from(num) >> (up.unsigned_abs() - 1)) + 1) >> 1
+                };
+                <$t>::from_bits(<$inner>::try_from(bits).unwrap_or(if bits < 0 {
+                    <$inner>::MIN
+                } else {
+                    <$inner>::MAX
+                }))
+            }
             fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error> {
                 if log2_den > 31 {
                     return Err(Error::OutOfRange(crate::Quantity::Value));

@@ -46,6 +46,10 @@ macro_rules! float_scalar {
             fn from_ratio(num: i32, den: i32) -> Result<Self, Error> {
                 (num as $t).div(den as $t)
             }
+            #[inline(always)]
+            fn from_scaled_proved(num: i32, log2_den: u32) -> Self {
+                num as $t * (1.0 / (1u64 << log2_den.min(31)) as $t)
+            }
             fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error> {
                 if log2_den > 31 {
                     return Err(Error::OutOfRange(crate::Quantity::Value));

@@ -157,6 +157,13 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
     /// an exact scaling for floats, where `from_ratio` divides (hundreds of
     /// instructions on a core without a divider).
     fn from_ratio_pow2(num: i32, log2_den: u32) -> Result<Self, Error>;
+    /// `num / 2^log2_den` where the caller proves the result inside the
+    /// type's range (data prepared at build time in a stated binary scale,
+    /// read on every reading): no `Result` on the way. Fixed point shifts
+    /// (rounded to nearest, ties upward) and saturates should the proof
+    /// fail; floats scale exactly after one rounding of `num`. `log2_den`
+    /// above 31 is taken as 31.
+    fn from_scaled_proved(num: i32, log2_den: u32) -> Self;
     /// Nearest integer (ties away from zero), checked.
     fn round_to_i32(self) -> Result<i32, Error>;
     /// Largest integer not above the value, checked (`Overflow` outside

@@ -264,15 +264,16 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         Ok((self.c0.add_proved(self.c1.mul_proved(m.index)), m))
     }
 
-    fn ratio(&self) -> Result<S, Error> {
-        S::from_ratio_pow2(self.design.dispersion_ratio_q30, 30)
+    /// The dispersion ratio (checked at construction: 0.9 to 1.1).
+    fn ratio(&self) -> S {
+        S::from_scaled_proved(self.design.dispersion_ratio_q30, 30)
     }
 
     /// One reading from a mean (see the [module docs](self)).
     pub fn read(&mut self, mean: &Mean<S>) -> Result<BrixReading<S>, Error> {
         let (n_led, m) = self.index_of(mean)?;
         let t = mean.temperature_c;
-        let r = self.ratio()?;
+        let r = self.ratio();
         // nD at T: 1 + (n − 1)·r; n under 2, r under 1.1.
         let nd_t = S::ONE.add_proved(n_led.sub_proved(S::ONE).mul_proved(r));
         let out = Error::OutOfRange(Quantity::RefractiveIndex);
@@ -297,10 +298,11 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
                 .mul_proved(self.c1)
                 .mul_proved(m.per_kelvin.mul_proved(hundred)),
         );
-        let u_px = S::from_ratio_pow2(mean.position_uncertainty.min(1 << 24), 16)?;
-        let u_t = millis(self.design.temperature_uncertainty_mc)?;
+        // Under 256 pixels.
+        let u_px = S::from_scaled_proved(mean.position_uncertainty.clamp(0, 1 << 24), 16);
+        let u_t = millis(self.design.temperature_uncertainty_mc);
         // The stated 10⁻⁸ nD units in 0.01 nD: v · 10⁻⁶ = v · 2⁻¹⁰ · 1.024e-3.
-        let u_cal = S::from_ratio_pow2(i32::from(self.design.calibration_uncertainty_e8), 10)?
+        let u_cal = S::from_scaled_proved(i32::from(self.design.calibration_uncertainty_e8), 10)
             .mul_proved(lit!(S, 1.024e-3));
         let u_model = if g.on_table {
             S::ZERO
@@ -362,12 +364,9 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         if usize::from(self.window_len) < len {
             return false;
         }
-        let band_nd = S::from_ratio_pow2(i32::from(self.design.settle_band_e8), 10)
-            .map(|b| b.mul_proved(lit!(S, 1.024e-5)));
-        let band_t = millis(self.design.settle_band_mc);
-        let (Ok(band_nd), Ok(band_t)) = (band_nd, band_t) else {
-            return false;
-        };
+        let band_nd = S::from_scaled_proved(i32::from(self.design.settle_band_e8), 10)
+            .mul_proved(lit!(S, 1.024e-5));
+        let band_t = millis::<S>(self.design.settle_band_mc);
         let mut lo = self.window[0];
         let mut hi = lo;
         for &(n, tt) in self.window.iter().take(len) {
@@ -417,7 +416,7 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
             b = b20.sub(c.correction)?;
         }
         let (nd_t, _) = nd_of_apparent(b).ok_or(Error::OutOfRange(Quantity::ScaleValue))?;
-        let n_led = S::ONE.add(nd_t.sub(S::ONE)?.div(self.ratio()?)?)?;
+        let n_led = S::ONE.add(nd_t.sub(S::ONE)?.div(self.ratio())?)?;
         let m = self.design.map.index_at(mean.position, t)?;
         let rise = m.index.sub(zero_index)?;
         if rise.abs()? < lit!(S, 0.005) {
@@ -475,9 +474,9 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
     }
 }
 
-/// `v / 1000` without a division: `v · 2⁻¹⁰ · 1.024`.
-fn millis<S: Scalar>(v: u16) -> Result<S, Error> {
-    Ok(S::from_ratio_pow2(i32::from(v), 10)?.mul_proved(lit!(S, 1.024)))
+/// `v / 1000` without a division: `v · 2⁻¹⁰ · 1.024` (under 65).
+fn millis<S: Scalar>(v: u16) -> S {
+    S::from_scaled_proved(i32::from(v), 10).mul_proved(lit!(S, 1.024))
 }
 
 /// An offset a calibration can set: within ±0.5 (the index's change over a

@@ -18,10 +18,13 @@ use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::scalar::Scalar;
 
-/// `v · 2^-q` in `S` (a shift for fixed point, an exact scaling for floats).
-#[inline]
-fn q<S: Scalar>(v: i32, q: u32) -> Result<S, Error> {
-    S::from_ratio_pow2(v, q)
+/// `v · 2^-q` in `S` (a shift for fixed point, an exact scaling for
+/// floats). Every use reads a prepared entry in a stated scale whose value
+/// the format holds: Q30 entries are under 2, Q16 temperatures under 128 °C,
+/// Q13 corrections under 4 %Brix.
+#[inline(always)]
+fn q<S: Scalar>(v: i32, q: u32) -> S {
+    S::from_scaled_proved(v, q)
 }
 
 /// The sample's index at the LED over the sensor, as the exact geometry and
@@ -83,10 +86,10 @@ impl PositionMap<'_> {
             .get(k)
             .ok_or(Error::OutOfRange(Quantity::Value))?;
         // u in [0, 1): the remainder over the segment's length.
-        let u: S = q(from_start & ((1 << shift) - 1), shift)?;
-        let (a0, a1, a2, a3): (S, S, S, S) = (q(a0, 30)?, q(a1, 30)?, q(a2, 30)?, q(a3, 30)?);
-        let (b0, b1): (S, S) = (q(b0, 30)?, q(b1, 30)?);
-        let dt = t.sub_proved(q(self.reference_c_q16, 16)?);
+        let u: S = q(from_start & ((1 << shift) - 1), shift);
+        let (a0, a1, a2, a3): (S, S, S, S) = (q(a0, 30), q(a1, 30), q(a2, 30), q(a3, 30));
+        let (b0, b1): (S, S) = (q(b0, 30), q(b1, 30));
+        let dt = t.sub_proved(q(self.reference_c_q16, 16));
         // Ranges: u in [0, 1), every coefficient under 2 in magnitude (Q30
         // in i32), dt within ±250 K... for I8F24 the prism's change per
         // kelvin (under 2e-5) times dt stays under 0.005; the index under 2.
@@ -100,7 +103,7 @@ impl PositionMap<'_> {
             .add_proved(a2)
             .add_proved(u.mul_proved(a3).mul_proved(lit!(S, 3.0)));
         let per_u = a1.add_proved(u.mul_proved(bend));
-        let per_pixel = per_u.mul_proved(q(1, u32::from(self.segment_log2))?);
+        let per_pixel = per_u.mul_proved(q(1, u32::from(self.segment_log2)));
         Ok(MappedIndex {
             index,
             per_pixel,
@@ -140,7 +143,7 @@ impl TemperatureLine<'_> {
         let f = frac.add_proved(S::from_i32(whole - k)?);
         let entry = |i: i32| -> Result<S, Error> {
             let v = usize::try_from(i).ok().and_then(|i| self.values.get(i));
-            q(*v.ok_or(Error::OutOfRange(Quantity::Temperature))?, 30)
+            Ok(q(*v.ok_or(Error::OutOfRange(Quantity::Temperature))?, 30))
         };
         let (y0, y1, y2) = (entry(k)?, entry(k + 1)?, entry(k + 2)?);
         // y0 + f·(d1 + (f − 1)·d2/2), d1 = y1 − y0, d2 = y2 − 2y1 + y0.
@@ -171,7 +174,7 @@ impl CodeTable<'_> {
     /// Temperature, °C, for an ADC `code`; `OutOfRange(AdcCode)` outside the
     /// table (a code at the rails: open or shorted sensor).
     pub fn temperature_c<S: Scalar>(&self, code: u16) -> Result<S, Error> {
-        q(self.celsius_q16(code)?, 16)
+        Ok(q(self.celsius_q16(code)?, 16))
     }
 
     /// [`temperature_c`](Self::temperature_c) as °C · 2¹⁶ (integer sums of
@@ -307,10 +310,8 @@ impl CorrectionGrid<'_> {
             .get(row)
             .ok_or(Error::OutOfRange(Quantity::Temperature))?;
         let at = |k: usize| -> Result<S, Error> {
-            q(
-                i32::from(*r.get(k).ok_or(Error::OutOfRange(Quantity::ScaleValue))?),
-                13,
-            )
+            let v = *r.get(k).ok_or(Error::OutOfRange(Quantity::ScaleValue))?;
+            Ok(q(i32::from(v), 13))
         };
         let (c0, cm, c1) = (at(2 * seg)?, at(2 * seg + 1)?, at(2 * seg + 2)?);
         // p(s) = c0 + s·(d1 + s·d2), d1 = 4cm − 3c0 − c1, d2 = 2(c0 + c1 − 2cm):
