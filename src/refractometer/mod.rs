@@ -174,6 +174,7 @@ pub mod boundary;
 pub mod brewing;
 pub mod calibration;
 pub mod compensation;
+pub mod factory_fit;
 pub mod forward;
 pub mod freezing;
 pub mod geometry;
