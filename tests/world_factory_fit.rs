@@ -76,19 +76,31 @@ fn pontius_certified_values() {
     assert!(b < 1e-11 && sd < 1e-11 && s < 1e-11, "{b:e} {sd:e} {s:e}");
 }
 
+/// Problem `seed` as the type receives it (positions in units of `unit`
+/// pixels), and the same standards in `f64` as received, in pixels times
+/// `scale` (1 or `unit`).
+fn received<S: Scalar>(
+    seed: u64,
+    count: usize,
+    unit: f64,
+    scale: f64,
+) -> (Vec<FitPoint<S>>, Vec<(f64, f64)>) {
+    let given = points::<S>(&calibration_standards(seed, count, 3e-5), unit);
+    let xq = given
+        .iter()
+        .map(|p| (p.position.to_f64() * scale, p.value.to_f64()))
+        .collect();
+    (given, xq)
+}
+
 /// Largest errors of value and uncertainty over the problems, against the
 /// reference, positions given to the fit in units of `unit` pixels.
 fn type_errors<S: Scalar>(unit: f64) -> (f64, f64, f64) {
     let (mut e_value, mut e_u, mut e_sd) = (0.0f64, 0.0f64, 0.0f64);
     for seed in 0..20 {
         for count in 4..=MAX_STANDARDS {
-            let xy = calibration_standards(seed, count, 3e-5);
             // The reference sees the positions as the type received them.
-            let given = points::<S>(&xy, unit);
-            let xq: Vec<(f64, f64)> = given
-                .iter()
-                .map(|p| (p.position.to_f64() * unit, p.value.to_f64()))
-                .collect();
+            let (given, xq) = received::<S>(seed, count, unit, unit);
             for degree in 1..=3.min(count - 1) {
                 let reference = fit_reference::fit(&xq, degree).unwrap();
                 let report: FitReport<S> = fit(&given, degree, S::from_f64(1e-3).unwrap()).unwrap();
@@ -243,4 +255,65 @@ fn refuses_what_it_cannot_fit() {
     let mut flat = good.clone();
     flat.iter_mut().for_each(|p| p.position = 300.0);
     assert_eq!(fits(&flat, 1, 1e-4), Some(Error::RankDeficient));
+}
+
+/// Largest differences from the reference of the scaled-basis covariance
+/// (relative to its largest entry, and in nD²) and of the coefficients' SDs
+/// (nD).
+fn covariance_errors<S: Scalar>(unit: f64) -> (f64, f64, f64) {
+    let (mut e_cov, mut e_abs, mut e_sd) = (0.0f64, 0.0f64, 0.0f64);
+    for seed in 0..10 {
+        let (given, xq) = received::<S>(200 + seed, 8, unit, 1.0);
+        for degree in 1..=3 {
+            let reference = fit_reference::fit(&xq, degree).unwrap();
+            let report: FitReport<S> = fit(&given, degree, S::from_f64(1e-3).unwrap()).unwrap();
+            let s2 = reference.residual_sd.unwrap().powi(2);
+            let cov = report.covariance().unwrap().unwrap();
+            let largest = (0..=degree)
+                .map(|i| s2 * reference.normal_inverse[i][i])
+                .fold(0.0, f64::max);
+            for (i, row) in cov.iter().enumerate().take(degree + 1) {
+                for (j, c) in row.iter().enumerate().take(degree + 1) {
+                    let r = s2 * reference.normal_inverse[i][j];
+                    e_abs = e_abs.max((c.to_f64() - r).abs());
+                    e_cov = e_cov.max((c.to_f64() - r).abs() / largest);
+                }
+                let sd = report.coefficient_sd(i).unwrap().unwrap().to_f64();
+                e_sd = e_sd.max((sd - (s2 * reference.normal_inverse[i][i]).sqrt()).abs());
+            }
+            assert_eq!(report.coefficient_sd(degree + 1), Ok(None));
+        }
+    }
+    (e_cov, e_abs, e_sd)
+}
+
+#[test]
+fn covariance_and_coefficient_sds_against_f64() {
+    // Independent f64: s²·(AᵀA)⁻¹ in the same scaled basis
+    // (tests/support/fit_reference.rs). The variances here are near 1e-10:
+    // the floats are held to a fraction of the largest, I32F32 (resolution
+    // 2.3e-10) and I8F24 (6.0e-8) to a few of their steps (the module says
+    // why); the coefficients' SDs are checked in every type.
+    for (name, (c, a, s), budget) in [
+        ("f64", covariance_errors::<f64>(1.0), [1e-10, 1.0, 1e-15]),
+        ("f32", covariance_errors::<f32>(1.0), [2e-2, 1.0, 2e-7]),
+        (
+            "I32F32",
+            covariance_errors::<I32F32>(1.0),
+            [f64::INFINITY, 1e-9, 2e-9],
+        ),
+        (
+            "I8F24",
+            covariance_errors::<I8F24>(64.0),
+            [f64::INFINITY, 3e-7, 1e-6],
+        ),
+    ] {
+        println!(
+            "{name}: covariance {c:.1e} of its largest entry ({a:.1e}), coefficient SDs {s:.1e}"
+        );
+        assert!(
+            c <= budget[0] && a <= budget[1] && s <= budget[2],
+            "{name}: {c:e} {a:e} {s:e}"
+        );
+    }
 }

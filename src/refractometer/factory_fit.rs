@@ -265,10 +265,11 @@ impl<S: Scalar, const N: usize> FitReport<S, N> {
     }
 
     /// Covariance of the scaled-basis coefficients, `s²(RᵀR)⁻¹` (entries
-    /// above the degree are zero; `None` when `N = p`). I8F24 resolves
-    /// 6.0e-8: an nD fit's variances (1e-10) round to zero there, so firmware
-    /// reads [`coefficient_sd`](Self::coefficient_sd) and
-    /// [`uncertainty_at`](Self::uncertainty_at) instead, which never square `s`.
+    /// above the degree are zero; `None` when `N = p`). An nD fit's
+    /// variances are near 1e-10: I32F32 resolves 2.3e-10 and I8F24 6.0e-8,
+    /// so fixed-point firmware reads [`coefficient_sd`](Self::coefficient_sd)
+    /// and [`uncertainty_at`](Self::uncertainty_at) instead, which never
+    /// square `s`.
     pub fn covariance(&self) -> Result<Option<[[S; MAX_TERMS]; MAX_TERMS]>, Error> {
         let Some(rows) = self.scaled_r_inverse()? else {
             return Ok(None);
