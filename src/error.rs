@@ -63,6 +63,14 @@ pub enum Quantity {
     FocalLength,
     /// A line-sensor frame (its length, or a matching reference frame).
     SensorFrame,
+    /// A calibration standard's reading: its position or its certified value.
+    CalibrationStandard,
+    /// How many standards a fit was given, against its degree and capacity.
+    StandardCount,
+    /// The degree of a fitted polynomial.
+    PolynomialDegree,
+    /// A maximum permissible error (the acceptance limit of a residual).
+    PermissibleError,
 }
 
 impl fmt::Display for Quantity {
@@ -94,6 +102,10 @@ impl fmt::Display for Quantity {
             Quantity::Dispersion => "dispersion coefficient",
             Quantity::FocalLength => "focal length",
             Quantity::SensorFrame => "sensor frame",
+            Quantity::CalibrationStandard => "calibration standard",
+            Quantity::StandardCount => "number of standards",
+            Quantity::PolynomialDegree => "polynomial degree",
+            Quantity::PermissibleError => "maximum permissible error",
         })
     }
 }
@@ -147,6 +159,10 @@ pub enum Error {
     /// The calibration store could not read, erase, write or verify its slots;
     /// the fault says which (see [`refractometer::store`](crate::refractometer::store)).
     Storage(StorageFault),
+    /// The standards do not determine the fitted curve: fewer distinct
+    /// positions than the polynomial has coefficients (repeated positions),
+    /// seen as a vanishing diagonal of the least-squares factor R.
+    RankDeficient,
 }
 
 impl fmt::Display for Error {
@@ -175,6 +191,9 @@ impl fmt::Display for Error {
             Error::LowConfidence => f.write_str("estimate confidence below the gate"),
             Error::Boundary(fault) => write!(f, "boundary not measured: {fault}"),
             Error::Storage(fault) => write!(f, "calibration store: {fault}"),
+            Error::RankDeficient => {
+                f.write_str("standards do not determine the curve: repeated positions")
+            }
         }
     }
 }

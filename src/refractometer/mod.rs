@@ -173,6 +173,7 @@ pub trait TradeScale<S: Scalar> {
 pub mod brewing;
 pub mod calibration;
 pub mod compensation;
+pub mod factory_fit;
 pub mod forward;
 pub mod freezing;
 pub mod geometry;

@@ -10,6 +10,7 @@ mod afint;
 mod cal;
 mod chain;
 mod dispersion;
+mod fit;
 mod lens;
 mod refraction;
 mod scalar;
@@ -55,6 +56,8 @@ fn all_rows() -> Vec<Row> {
         row::<cal::ThermistorBeta>(),
         row::<cal::RecordCorrection>(),
         row::<cal::RecordCoefficient>(),
+        row::<fit::FitValue>(),
+        row::<fit::FitUncertainty>(),
         row::<search::PeakParabolic>(),
         row::<search::PeakGaussian>(),
         row::<search::SimBlur>(),
