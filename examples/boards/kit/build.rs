@@ -165,8 +165,40 @@ fn main() {
     expect(&mut out, "F64", "f64", &wide, |x| format!("{x:?}"));
     frame(&mut out);
     chain_tables(&mut out);
+    lean_design(&mut out);
     let path = std::path::Path::new(&std::env::var("OUT_DIR").unwrap()).join("table.rs");
     std::fs::write(path, out).unwrap();
+}
+
+/// The reading side's data for the chain's design (prepared from the exact
+/// models, as a firmware's build script does): `LEAN_MAP`, `LEAN_WATER`,
+/// `LEAN_THERMISTOR` (10 kΩ NTC, β 3950 K, under 10 kΩ, 12-bit ADC) and
+/// `LEAN_DISPERSION_RATIO_Q30`.
+fn lean_design(out: &mut String) {
+    use embedded_optics::refractometer::prepare;
+    use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
+    let divider = Divider {
+        placement: Placement::ThermistorLowSide,
+        reference_ohms: 10_000,
+        adc_bits: 12,
+        rail_margin_codes: 4,
+    };
+    let ntc = Beta {
+        beta_k: 3950,
+        r0_ohms: 10_000,
+        t0_c: 25.0,
+    };
+    let prism = chains::prism::<f64>().unwrap();
+    let data = prepare::prepare(
+        &chains::GEOMETRY,
+        &prism,
+        chains::LED_NM,
+        PIXELS as u16,
+        &divider,
+        &ntc,
+    )
+    .unwrap();
+    data.to_rust("LEAN", out).unwrap();
 }
 
 /// Samples of the refractometer run: (%Brix at 20 °C, sample temperature °C);

@@ -28,7 +28,7 @@
 //! verification apply.
 
 use super::boundary::{BoundaryConfig, SUBPIXEL, find_boundary};
-use super::brix_cells::{apparent_of_nd, nd_of_apparent};
+use super::brix_cells::{apparent_of_nd_with_slope, nd_of_apparent};
 use super::prepared::{CodeTable, CorrectionGrid, PositionMap, TemperatureLine};
 use super::record::{CalibrationRecord, Correction, SlotChoice};
 use crate::error::{Error, Quantity};
@@ -128,6 +128,9 @@ pub struct BrixMeter<'a, S> {
     zero: Option<(S, S)>,
     zero_temperature_mc: i32,
     sequence: u32,
+    /// The design's stated figures in `S`, converted once: u(T) in °C,
+    /// u(calibration) in 0.01 nD, the settling bands in nD and °C.
+    stated: [S; 4],
     // Frame sums: deviations from the first frame's position.
     count: u8,
     first: i32,
@@ -173,8 +176,18 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         if !(966_367_642..=1_181_116_006).contains(&design.dispersion_ratio_q30) {
             return Err(Error::OutOfRange(Quantity::Dispersion));
         }
+        let stated = [
+            millis(design.temperature_uncertainty_mc),
+            // 10⁻⁸ nD units in 0.01 nD: v · 10⁻⁶ = v · 2⁻¹⁰ · 1.024e-3.
+            S::from_scaled_proved(i32::from(design.calibration_uncertainty_e8), 10)
+                .mul_proved(lit!(S, 1.024e-3)),
+            S::from_scaled_proved(i32::from(design.settle_band_e8), 10)
+                .mul_proved(lit!(S, 1.024e-5)),
+            millis(design.settle_band_mc),
+        ];
         Ok(Self {
             design,
+            stated,
             c0: S::ZERO,
             c1: S::ONE,
             zero: None,
@@ -277,8 +290,7 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         // nD at T: 1 + (n − 1)·r; n under 2, r under 1.1.
         let nd_t = S::ONE.add_proved(n_led.sub_proved(S::ONE).mul_proved(r));
         let out = Error::OutOfRange(Quantity::RefractiveIndex);
-        let b_read = apparent_of_nd(nd_t).ok_or(out)?;
-        let (_, slope_t) = nd_of_apparent(b_read).ok_or(out)?;
+        let (b_read, per_centi_t) = apparent_of_nd_with_slope(nd_t).ok_or(out)?;
         let g = self.design.compensation.correction(t, b_read)?;
         let b20 = b_read.add_proved(g.correction);
         let (nd20, slope20) = nd_of_apparent(b20).ok_or(out)?;
@@ -289,7 +301,7 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         let per_centi = S::ONE
             .add_proved(g.per_brix)
             .mul_proved(r)
-            .div(slope_t.mul_proved(hundred))?;
+            .mul_proved(per_centi_t);
         let per_pixel = per_centi
             .mul_proved(self.c1)
             .mul_proved(m.per_pixel.mul_proved(hundred));
@@ -300,10 +312,7 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         );
         // Under 256 pixels.
         let u_px = S::from_scaled_proved(mean.position_uncertainty.clamp(0, 1 << 24), 16);
-        let u_t = millis(self.design.temperature_uncertainty_mc);
-        // The stated 10⁻⁸ nD units in 0.01 nD: v · 10⁻⁶ = v · 2⁻¹⁰ · 1.024e-3.
-        let u_cal = S::from_scaled_proved(i32::from(self.design.calibration_uncertainty_e8), 10)
-            .mul_proved(lit!(S, 1.024e-3));
+        let [u_t, u_cal, ..] = self.stated;
         let u_model = if g.on_table {
             S::ZERO
         } else {
@@ -311,21 +320,24 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
                 .abs()?
                 .mul_proved(lit!(S, MODEL_UNCERTAINTY_PER_KELVIN))
         };
-        // Each term in %Brix, under 100; squared under 10⁴ (I8F24 holds
-        // under 128: the sum is scaled by 1/100 first).
-        let tenth = lit!(S, 0.1);
+        // Each term in %Brix, held to ±5 (an uncertainty beyond 5 %Brix says
+        // only that the reading is unusable): squares under 25, their sum
+        // under 100, inside every type's range.
+        let five = lit!(S, 5.0);
         let terms = [
-            per_pixel.mul_proved(u_px).mul_proved(tenth),
-            per_kelvin.mul_proved(u_t).mul_proved(tenth),
-            per_centi.mul_proved(u_cal).mul_proved(tenth),
-            u_model.mul_proved(tenth),
+            per_pixel.mul_proved(u_px),
+            per_kelvin.mul_proved(u_t),
+            per_centi.mul_proved(u_cal),
+            u_model,
         ];
         let mut sum = S::ZERO;
         for x in terms {
-            sum = sum.add(x.mul(x)?)?;
+            let x = x.max(S::ZERO.sub_proved(five)).min(five);
+            sum = sum.add_proved(x.mul_proved(x));
         }
-        let u_brix = sum.sqrt()?.mul(lit!(S, 10.0))?;
-        let u_nd20 = u_brix.mul(slope20)?;
+        let u_brix = sum.sqrt()?;
+        // Under 5·√4 %Brix times a slope under 0.003 nD per %Brix.
+        let u_nd20 = u_brix.mul_proved(slope20);
         if !(nd20.is_finite() && u_brix.is_finite()) {
             return Err(Error::NotFinite(Quantity::RefractiveIndex));
         }
@@ -364,9 +376,7 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         if usize::from(self.window_len) < len {
             return false;
         }
-        let band_nd = S::from_scaled_proved(i32::from(self.design.settle_band_e8), 10)
-            .mul_proved(lit!(S, 1.024e-5));
-        let band_t = millis::<S>(self.design.settle_band_mc);
+        let [_, _, band_nd, band_t] = self.stated;
         let mut lo = self.window[0];
         let mut hi = lo;
         for &(n, tt) in self.window.iter().take(len) {

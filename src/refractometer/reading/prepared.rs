@@ -94,14 +94,15 @@ impl PositionMap<'_> {
         // in i32), dt within ±250 K... for I8F24 the prism's change per
         // kelvin (under 2e-5) times dt stays under 0.005; the index under 2.
         let per_kelvin = b0.add_proved(u.mul_proved(b1));
-        let cubic = a1.add_proved(u.mul_proved(a2.add_proved(u.mul_proved(a3))));
+        let ua3 = u.mul_proved(a3);
+        let cubic = a1.add_proved(u.mul_proved(a2.add_proved(ua3)));
         let index = a0
             .add_proved(u.mul_proved(cubic))
             .add_proved(per_kelvin.mul_proved(dt));
         // d/du = a1 + u·(2·a2 + 3·u·a3), per pixel: · 2^-segment_log2.
         let bend = a2
             .add_proved(a2)
-            .add_proved(u.mul_proved(a3).mul_proved(lit!(S, 3.0)));
+            .add_proved(ua3.add_proved(ua3).add_proved(ua3));
         let per_u = a1.add_proved(u.mul_proved(bend));
         let per_pixel = per_u.mul_proved(q(1, u32::from(self.segment_log2)));
         Ok(MappedIndex {

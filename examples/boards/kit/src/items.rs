@@ -34,6 +34,8 @@ use embedded_optics::optics::refraction::{
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection, find_boundary};
 use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::geometry::Geometry;
+use embedded_optics::refractometer::reading::meter::{BrixMeter, Mean, MeterDesign};
+use embedded_optics::refractometer::reading::tables::OIV_GRID;
 use embedded_optics::refractometer::scales::SucroseBrix;
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 use embedded_optics::refractometer::{SampleCompensation, TradeScale, WavelengthCorrection};
@@ -295,6 +297,76 @@ pub fn conversion_per_reading<S: Tabled>(i: usize) {
     black_box(&inst.read(black_box(&avg)));
 }
 
+/// The reading side's design for the chain's optics: data prepared at build
+/// time by `build.rs`, the OIV grid the crate ships.
+static LEAN: MeterDesign<'static> = MeterDesign {
+    boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
+    map: crate::table::LEAN_MAP,
+    water: crate::table::LEAN_WATER,
+    thermistor: crate::table::LEAN_THERMISTOR,
+    dispersion_ratio_q30: crate::table::LEAN_DISPERSION_RATIO_Q30,
+    compensation: OIV_GRID,
+    led_wavelength_pm: 590_000,
+    frames_log2: 0,
+    temperature_uncertainty_mc: 100,
+    calibration_uncertainty_e8: 1000,
+    settle_readings: 3,
+    settle_band_e8: 3000,
+    settle_band_mc: 100,
+};
+
+/// A thermistor code near 15 °C on the design's divider (for the frame item).
+const LEAN_CODE: u16 = 2511;
+
+/// Set-up of [`lean_conversion`]: the meter and the mean of one frame (its
+/// boundary and the sample's temperature): what a reading starts from.
+fn lean_setup<S: Tabled>(i: usize) -> Option<(BrixMeter<'static, S>, Mean<S>)> {
+    let meter = BrixMeter::<S>::new(&LEAN).ok()?;
+    let (f, t) = chain_input::<S>(i);
+    let b = find_boundary(f, &LEAN.boundary).ok()?;
+    let mean = Mean {
+        position: b.position,
+        position_uncertainty: b.uncertainty,
+        temperature_c: t,
+        contrast: b.contrast(),
+    };
+    Some((meter, mean))
+}
+
+/// Base of [`lean_conversion`].
+pub fn lean_conversion_base<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some((meter, mean)) = lean_setup::<S>(i) else {
+        return;
+    };
+    black_box(&meter);
+    black_box(&mean);
+}
+
+/// Reading side, conversion per reading: a mean (position, temperature) →
+/// nD20, %Brix and their uncertainties, settling window included
+/// (`BrixMeter::read`).
+pub fn lean_conversion<S: Tabled>(i: usize) {
+    black_box(row::<S>(i));
+    let Some((mut meter, mean)) = lean_setup::<S>(i) else {
+        return;
+    };
+    black_box(&meter);
+    black_box(&meter.read(black_box(&mean)));
+}
+
+/// Reading side, a whole reading: frame and thermistor code → %Brix
+/// (`BrixMeter::feed` + `read`); its flash probe is the reading chain's.
+pub fn lean_frame_to_brix<S: Tabled>(i: usize) {
+    let Ok(mut meter) = BrixMeter::<S>::new(&LEAN) else {
+        return;
+    };
+    let (f, _) = chain_input::<S>(i);
+    if let Ok(Some(mean)) = meter.feed(f, black_box(LEAN_CODE)) {
+        black_box(&meter.read(&mean));
+    }
+}
+
 /// Factory fit of the hand-written chain (invented, for cost only): index at
 /// the LED from the boundary position in pixels, n = c0 + c1·p + c2·p² + c3·p³.
 const HAND_CUBIC: [f32; 4] = [1.2895, 2.61e-4, -4.1e-8, 1.2e-11];
@@ -553,12 +625,30 @@ macro_rules! per_type {
                 base: None,
                 run: focus_closed_loop::<$t>,
             },
+            Item {
+                name: concat!(
+                    "reading side: conversion per reading (BrixMeter::read)/",
+                    $n
+                ),
+                units: 1,
+                base: Some(lean_conversion_base::<$t>),
+                run: lean_conversion::<$t>,
+            },
+            Item {
+                name: concat!(
+                    "reading side: frame -> %Brix reading (BrixMeter::feed + read)/",
+                    $n
+                ),
+                units: 1,
+                base: None,
+                run: lean_frame_to_brix::<$t>,
+            },
         ]
     };
 }
 
 /// Items per number type.
-pub const PER_TYPE: usize = 15;
+pub const PER_TYPE: usize = 17;
 
 /// Items after the per-type ones: the frame floor and the `libm` baselines.
 const OTHERS: usize = 9;

@@ -26,6 +26,9 @@ pub mod table {
     use super::rows::OUTPUTS;
     #[allow(unused_imports)]
     use embedded_optics::error::{Error, Error::*, Quantity::*};
+    use embedded_optics::refractometer::reading::prepared::{
+        CodeTable, PositionMap, TemperatureLine,
+    };
     include!(concat!(env!("OUT_DIR"), "/table.rs"));
 }
 pub use table::ROWS;
