@@ -12,6 +12,7 @@ mod chain;
 mod dispersion;
 mod fit;
 mod lens;
+mod reading;
 mod refraction;
 mod scalar;
 mod search;
@@ -49,6 +50,11 @@ fn all_rows() -> Vec<Row> {
         row::<trade::SyrupDryMatterFromNd>(),
         row::<cal::SucroseCorrection>(),
         row::<cal::SucroseRowsCorrection>(),
+        row::<reading::MapIndex>(),
+        row::<reading::WaterLine>(),
+        row::<reading::ThermistorTable>(),
+        row::<reading::CellsApparentBrix>(),
+        row::<reading::CellsNdOfBrix>(),
         row::<trade::SucroseTemperatureModel>(),
         row::<cal::LinearSampleCompensation>(),
         row::<cal::PrismIndex>(),
