@@ -63,6 +63,9 @@ pub enum Quantity {
     FocalLength,
     /// A line-sensor frame (its length, or a matching reference frame).
     SensorFrame,
+    /// A parameter of the focus actuator's dynamics: natural frequency,
+    /// damping ratio, a time, a tolerance band, a recorded step response.
+    ActuatorDynamics,
 }
 
 impl fmt::Display for Quantity {
@@ -94,6 +97,7 @@ impl fmt::Display for Quantity {
             Quantity::Dispersion => "dispersion coefficient",
             Quantity::FocalLength => "focal length",
             Quantity::SensorFrame => "sensor frame",
+            Quantity::ActuatorDynamics => "actuator dynamics parameter",
         })
     }
 }
