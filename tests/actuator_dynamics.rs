@@ -433,26 +433,26 @@ fn against_f64<S: Scalar>(b: Budget) {
 fn every_number_type_against_f64() {
     against_f64::<f32>(Budget {
         name: "f32",
-        response: 1e-5,
-        settle_ms: 1e-3,
-        shaper: 1e-5,
-        fit_w: 1e-4,
-        fit_z: 1e-3,
+        response: 1.5e-6,
+        settle_ms: 3e-5,
+        shaper: 5e-7,
+        fit_w: 2e-7,
+        fit_z: 2e-7,
     });
     against_f64::<I32F32>(Budget {
         name: "I32F32",
-        response: 1e-7,
-        settle_ms: 1e-5,
-        shaper: 1e-7,
-        fit_w: 1e-5,
-        fit_z: 1e-4,
+        response: 5e-9,
+        settle_ms: 1.5e-7,
+        shaper: 1e-9,
+        fit_w: 3e-7,
+        fit_z: 3e-6,
     });
     against_f64::<I8F24>(Budget {
         name: "I8F24",
-        response: 1e-5,
-        settle_ms: 1e-3,
-        shaper: 1e-5,
-        fit_w: 1e-3,
-        fit_z: 1e-2,
+        response: 1.2e-6,
+        settle_ms: 1e-4,
+        shaper: 2.5e-7,
+        fit_w: 6e-5,
+        fit_z: 8e-4,
     });
 }

@@ -384,6 +384,17 @@ fn solve_symmetric3<S: Scalar>(a: [S; 6], b: [S; 3]) -> Result<[S; 3], Error> {
     Ok([x1, x2, x3])
 }
 
+/// `√(a² + b²)` as `big·√(1 + (small/big)²)`: squaring a residual near zero
+/// would lose it below the resolution of fixed point.
+fn hypot<S: Scalar>(a: S, b: S) -> Result<S, Error> {
+    let (a, b) = (a.abs()?, b.abs()?);
+    let (big, small) = if a >= b { (a, b) } else { (b, a) };
+    if big == S::ZERO {
+        return Ok(S::ZERO);
+    }
+    big.mul(S::ONE.add(small.div(big)?.square()?)?.sqrt()?)
+}
+
 /// Limits `x` to `±limit`.
 fn clamp<S: Scalar>(x: S, limit: S) -> Result<S, Error> {
     Ok(x.max(limit.neg()?).min(limit))
@@ -485,8 +496,10 @@ pub fn identify_step<S: Scalar>(samples: &[S], interval_ms: S) -> Result<Identif
                 let g = d_gain.mul_add(factor, gain)?;
                 Ok((m, g, rec.cost(&m, g)?))
             };
+            // `≤`: in fixed point the cost of a good fit rounds to a few units
+            // of the last place; a step that does not make it worse goes on.
             if let Ok((m, g, c)) = trial()
-                && c < cost
+                && c <= cost
             {
                 (model, gain, cost) = (m, g, c);
                 improved = true;
@@ -621,7 +634,7 @@ impl<S: Scalar> Shaper<S> {
             c = weight.mul_add(angle.cos()?, c)?;
             s = weight.mul_add(angle.sin()?, s)?;
         }
-        c.square()?.add(s.square()?)?.sqrt()
+        hypot(c, s)
     }
 
     /// The sensitivity curve: [`residual_vibration`](Self::residual_vibration)

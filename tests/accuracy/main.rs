@@ -10,6 +10,7 @@ mod afint;
 mod cal;
 mod chain;
 mod dispersion;
+mod dynamics;
 mod lens;
 mod refraction;
 mod scalar;
@@ -100,6 +101,14 @@ fn all_rows() -> Vec<Row> {
         row::<afint::BlurCircle>(),
         row::<afint::DepthOfFocusAtMagnification>(),
         row::<afint::HyperfocalExtension>(),
+        row::<dynamics::StepResponse>(),
+        row::<dynamics::PeakOvershoot>(),
+        row::<dynamics::SettleTime>(),
+        row::<dynamics::EnvelopeSettleTime>(),
+        row::<dynamics::ZvSensitivity>(),
+        row::<dynamics::ZvdSensitivity>(),
+        row::<dynamics::IdentifyFrequency>(),
+        row::<dynamics::IdentifyDamping>(),
     ]
 }
 
