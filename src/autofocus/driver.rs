@@ -474,6 +474,39 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
     /// be known (after a [`move_to`](Self::move_to), a [`land`](Self::land) or
     /// [`assume_position`](Self::assume_position)); otherwise, and for a code
     /// beyond the layout's width, the move is refused without a bus write.
+    ///
+    /// ```
+    /// use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
+    /// use embedded_hal_mock::eh1::i2c::{Mock, Transaction as Write};
+    /// use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, Landing, MotionProfile};
+    /// use embedded_optics::autofocus::dynamics::{SecondOrder, Shaper};
+    /// // Our camera rig's carrier: 100 Hz (0.628 rad/ms), ζ = 0.05, shaped by ZV.
+    /// let carrier = SecondOrder::new(0.628f32, 0.05).unwrap();
+    /// let zv = Shaper::zero_vibration(&carrier).unwrap().schedule().unwrap();
+    /// let motion = MotionProfile { max_step_codes: 64, resonance_hz: 100, settle_periods: 1 };
+    /// // After power-up the lens rests at code 0: ramp 150 codes per 3 ms.
+    /// let landing = Landing { park_code: 0, codes_per_step: 150, step_us: 3000 };
+    /// let bus = Mock::new(&[
+    ///     Write::write(0x0C, vec![0x00, 0x00]), // 0, the park code
+    ///     Write::write(0x0C, vec![0x09, 0x60]), // 150
+    ///     Write::write(0x0C, vec![0x12, 0xC0]), // 300, then the settle time
+    ///     Write::write(0x0C, vec![0x14, 0xF0]), // 335 = 300 + 64/(1 + 0.854), rounded
+    ///     Write::write(0x0C, vec![0x16, 0xC0]), // 364, half a damped period later
+    /// ]);
+    /// let delay = CheckedDelay::new(&[
+    ///     Wait::delay_us(3000),
+    ///     Wait::delay_us(3000),
+    ///     Wait::delay_us(10_000),
+    ///     Wait::delay_us(5009),
+    /// ]);
+    /// let mut actuator =
+    ///     FocusActuatorDriver::new(bus, delay, BusLayout::ten_bit_word(0x0C), motion).unwrap();
+    /// actuator.land(300, &landing).unwrap();
+    /// actuator.move_shaped(364, &zv).unwrap();
+    /// let (mut bus, mut delay) = actuator.release();
+    /// bus.done();
+    /// delay.done();
+    /// ```
     pub fn move_shaped(
         &mut self,
         target: u16,
