@@ -71,6 +71,9 @@ pub enum Quantity {
     PolynomialDegree,
     /// A maximum permissible error (the acceptance limit of a residual).
     PermissibleError,
+    /// A parameter of the focus actuator's dynamics: natural frequency,
+    /// damping ratio, a time, a tolerance band, a recorded step response.
+    ActuatorDynamics,
 }
 
 impl fmt::Display for Quantity {
@@ -106,6 +109,7 @@ impl fmt::Display for Quantity {
             Quantity::StandardCount => "number of standards",
             Quantity::PolynomialDegree => "polynomial degree",
             Quantity::PermissibleError => "maximum permissible error",
+            Quantity::ActuatorDynamics => "actuator dynamics parameter",
         })
     }
 }

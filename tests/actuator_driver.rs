@@ -7,8 +7,9 @@ use embedded_hal_mock::eh1::i2c::{Mock as I2cMock, Transaction as I2c};
 use embedded_optics::Error;
 use embedded_optics::autofocus::actuator::Approach;
 use embedded_optics::autofocus::driver::{
-    BusLayout, DriverError, FocusActuatorDriver, MotionProfile,
+    BusLayout, DriverError, FocusActuatorDriver, Landing, MotionProfile,
 };
+use embedded_optics::autofocus::dynamics::{SecondOrder, Shaper};
 
 #[path = "support/driver_layouts.rs"]
 mod driver_layouts;
@@ -173,4 +174,167 @@ fn bad_layouts_and_profiles_are_refused() {
         i2c.done();
         delay.done();
     }
+}
+
+/// ZV and ZVD schedules for a 100 Hz (0.628 rad/ms), ζ = 0.05 carrier.
+/// Overshoot K = exp(−0.05π/√(1 − 0.05²)) = 0.85447; half a damped period
+/// π/(0.628·√(1 − 0.05²)) = 5.0089 ms.
+fn schedules() -> (
+    embedded_optics::autofocus::dynamics::MoveSchedule,
+    embedded_optics::autofocus::dynamics::MoveSchedule,
+) {
+    let carrier = SecondOrder::new(0.628f64, 0.05).unwrap();
+    (
+        Shaper::zero_vibration(&carrier)
+            .unwrap()
+            .schedule()
+            .unwrap(),
+        Shaper::zero_vibration_derivative(&carrier)
+            .unwrap()
+            .schedule()
+            .unwrap(),
+    )
+}
+
+#[test]
+fn shaped_move_writes_the_schedule() {
+    let (zv, zvd) = schedules();
+    // ZV, 300 → 364 (Singer & Seering 1990): 64/(1 + K) = 34.51 → 335 at 0,
+    // 364 at 5009 µs. ZVD, 364 → 300: 64/(1+K)² = 18.61 down → 345 at 0;
+    // 64·(1 + 2K)/(1+K)² = 50.41 down → 314 at 5009 µs; 300 at 10 018 µs.
+    let i2c = I2cMock::new(&[
+        I2c::write(0x0C, vec![0x14, 0xF0]), // 335 << 4
+        I2c::write(0x0C, vec![0x16, 0xC0]), // 364 << 4
+        I2c::write(0x0C, vec![0x15, 0x90]), // 345 << 4
+        I2c::write(0x0C, vec![0x13, 0xA0]), // 314 << 4
+        I2c::write(0x0C, vec![0x12, 0xC0]), // 300 << 4
+    ]);
+    let delay = CheckedDelay::new(&[
+        Delay::delay_us(5009),
+        Delay::delay_us(5009),
+        Delay::delay_us(5009),
+    ]);
+    let mut drv = FocusActuatorDriver::new(i2c, delay, TEN_BIT, MOTION).unwrap();
+    drv.assume_position(300).unwrap();
+    drv.move_shaped(364, &zv).unwrap();
+    assert_eq!(drv.position(), Some(364));
+    assert_eq!(drv.last_approach(), Some(Approach::FromInfinity));
+    drv.move_shaped(300, &zvd).unwrap();
+    assert_eq!(drv.position(), Some(300));
+    assert_eq!(drv.last_approach(), Some(Approach::FromMacro));
+    // Already there: no traffic.
+    drv.move_shaped(300, &zv).unwrap();
+    finish(drv);
+}
+
+#[test]
+fn shaped_move_needs_a_known_position_and_a_code_in_range() {
+    let (zv, _) = schedules();
+    let refused = Err(DriverError::Rejected(Error::OutOfRange(
+        embedded_optics::Quantity::ActuatorCode,
+    )));
+    let mut drv =
+        FocusActuatorDriver::new(I2cMock::new(&[]), CheckedDelay::new(&[]), EIGHT_BIT, MOTION)
+            .unwrap();
+    assert_eq!(drv.move_shaped(100, &zv), refused);
+    drv.assume_position(10).unwrap();
+    assert_eq!(drv.move_shaped(256, &zv), refused);
+    assert_eq!(drv.position(), Some(10));
+    finish(drv);
+}
+
+#[test]
+fn shaped_move_bus_error_keeps_the_last_code_written() {
+    let (zv, _) = schedules();
+    let i2c = I2cMock::new(&[
+        I2c::write(0x0C, vec![0x14, 0xF0]),
+        I2c::write(0x0C, vec![0x16, 0xC0]).with_error(ErrorKind::Other),
+    ]);
+    let delay = CheckedDelay::new(&[Delay::delay_us(5009)]);
+    let mut drv = FocusActuatorDriver::new(i2c, delay, TEN_BIT, MOTION).unwrap();
+    drv.assume_position(300).unwrap();
+    assert_eq!(
+        drv.move_shaped(364, &zv),
+        Err(DriverError::Bus(ErrorKind::Other))
+    );
+    assert_eq!(drv.position(), Some(335));
+    finish(drv);
+}
+
+/// Park at 0, 100 codes every 2 ms (50 codes/ms).
+const LANDING: Landing = Landing {
+    park_code: 0,
+    codes_per_step: 100,
+    step_us: 2000,
+};
+
+#[test]
+fn first_move_lands_gently_from_the_park_code() {
+    // Unknown position: 0 (parked), 100, 200 every 2 ms, then 250 and the
+    // 10 ms settle time; later landings ramp from where the lens is.
+    let i2c = I2cMock::new(&[
+        I2c::write(0x0C, vec![0x00, 0x00]),
+        I2c::write(0x0C, vec![0x06, 0x40]), // 100 << 4
+        I2c::write(0x0C, vec![0x0C, 0x80]), // 200 << 4
+        I2c::write(0x0C, vec![0x0F, 0xA0]), // 250 << 4
+        I2c::write(0x0C, vec![0x09, 0x60]), // 150 << 4
+        I2c::write(0x0C, vec![0x08, 0x20]), // 130 << 4
+    ]);
+    let delay = CheckedDelay::new(&[
+        Delay::delay_us(2000),
+        Delay::delay_us(2000),
+        Delay::delay_us(2000),
+        Delay::delay_us(10_000),
+        Delay::delay_us(2000),
+        Delay::delay_us(10_000),
+    ]);
+    let mut drv = FocusActuatorDriver::new(i2c, delay, TEN_BIT, MOTION).unwrap();
+    drv.land(250, &LANDING).unwrap();
+    assert_eq!(drv.position(), Some(250));
+    assert_eq!(drv.last_approach(), Some(Approach::FromInfinity));
+    drv.land(250, &LANDING).unwrap(); // already there: no traffic
+    drv.land(130, &LANDING).unwrap();
+    assert_eq!(drv.last_approach(), Some(Approach::FromMacro));
+    finish(drv);
+}
+
+#[test]
+fn bad_landings_are_refused_without_traffic() {
+    let refused = |e| Err(DriverError::Rejected(Error::OutOfRange(e)));
+    let mut drv =
+        FocusActuatorDriver::new(I2cMock::new(&[]), CheckedDelay::new(&[]), EIGHT_BIT, MOTION)
+            .unwrap();
+    for bad in [
+        Landing {
+            codes_per_step: 0,
+            ..LANDING
+        },
+        Landing {
+            step_us: 0,
+            ..LANDING
+        },
+        Landing {
+            step_us: 1_000_001,
+            ..LANDING
+        },
+    ] {
+        assert_eq!(
+            drv.land(100, &bad),
+            refused(embedded_optics::Quantity::Value)
+        );
+    }
+    let beyond = Landing {
+        park_code: 256,
+        ..LANDING
+    };
+    assert_eq!(
+        drv.land(100, &beyond),
+        refused(embedded_optics::Quantity::ActuatorCode)
+    );
+    assert_eq!(
+        drv.land(256, &LANDING),
+        refused(embedded_optics::Quantity::ActuatorCode)
+    );
+    assert_eq!(drv.position(), None);
+    finish(drv);
 }

@@ -12,8 +12,9 @@ use embedded_hal_mock::eh1::i2c::{Mock as I2cMock, Transaction as I2c};
 use embedded_optics::autofocus::actuator::Approach;
 use embedded_optics::autofocus::async_driver::AsyncFocusActuatorDriver;
 use embedded_optics::autofocus::driver::{
-    BusLayout, DriverError, FocusActuatorDriver, MotionProfile,
+    BusLayout, DriverError, FocusActuatorDriver, Landing, MotionProfile,
 };
+use embedded_optics::autofocus::dynamics::{SecondOrder, Shaper};
 use embedded_optics::{Error, Quantity};
 
 /// Runs a future to completion by polling (the mocks never return Pending;
@@ -227,5 +228,104 @@ fn same_writes_and_waits_as_the_blocking_driver() {
             assert!(a.waits_us.iter().all(|&w| w == 6007));
             assert_eq!(a.waits_us.len(), a.writes.len());
         }
+    }
+}
+
+/// ZV for a 100 Hz (0.628 rad/ms), ζ = 0.05 carrier: 1/(1 + K) of the move at
+/// 0, the rest half a damped period (5009 µs) later, K = 0.85447
+/// (Singer & Seering 1990).
+fn zv() -> embedded_optics::autofocus::dynamics::MoveSchedule {
+    let carrier = SecondOrder::new(0.628f64, 0.05).unwrap();
+    Shaper::zero_vibration(&carrier)
+        .unwrap()
+        .schedule()
+        .unwrap()
+}
+
+#[test]
+fn lands_then_moves_shaped() {
+    // Land from the park code 0 at 200 codes per 1.5 ms: 0, 200, 300 (+ settle);
+    // then ZV 300 → 364: 64/(1 + K) = 34.51 → 335 at 0, 364 at 5009 µs.
+    let landing = Landing {
+        park_code: 0,
+        codes_per_step: 200,
+        step_us: 1500,
+    };
+    let i2c = I2cMock::new(&[
+        I2c::write(0x0C, vec![0x00, 0x00]),
+        I2c::write(0x0C, vec![0x0C, 0x80]), // 200 << 4
+        I2c::write(0x0C, vec![0x12, 0xC0]), // 300 << 4
+        I2c::write(0x0C, vec![0x14, 0xF0]), // 335 << 4
+        I2c::write(0x0C, vec![0x16, 0xC0]), // 364 << 4
+    ]);
+    let delay = CheckedDelay::new(&[
+        Delay::delay_us(1500),
+        Delay::delay_us(1500),
+        Delay::delay_us(10_000),
+        Delay::delay_us(5009),
+    ]);
+    let mut drv = AsyncFocusActuatorDriver::new(i2c, delay, TEN_BIT, MOTION).unwrap();
+    let schedule = zv();
+    // Unknown position: a shaped move is refused without traffic.
+    assert_eq!(
+        block_on(drv.move_shaped(364, &schedule)),
+        Err(DriverError::Rejected(Error::OutOfRange(
+            Quantity::ActuatorCode
+        )))
+    );
+    block_on(drv.land(300, &landing)).unwrap();
+    assert_eq!(drv.last_approach(), Some(Approach::FromInfinity));
+    block_on(drv.move_shaped(364, &schedule)).unwrap();
+    assert_eq!(drv.position(), Some(364));
+    finish(drv);
+}
+
+#[test]
+fn shaped_moves_and_landings_as_the_blocking_driver() {
+    let schedule = zv();
+    let landing = Landing {
+        park_code: 20,
+        codes_per_step: 9,
+        step_us: 700,
+    };
+    let targets = [700u16, 0, 1023, 512, 513, 511, 511, 900, 37, 1023];
+    for layout in [TEN_BIT, TWELVE_BIT] {
+        let (blocking, asynchronous) = (Default::default(), Default::default());
+        let mut b =
+            FocusActuatorDriver::new(Recorder(&blocking), Recorder(&blocking), layout, MOTION)
+                .unwrap();
+        let mut a = AsyncFocusActuatorDriver::new(
+            Recorder(&asynchronous),
+            Recorder(&asynchronous),
+            layout,
+            MOTION,
+        )
+        .unwrap();
+        b.land(600, &landing).unwrap();
+        block_on(a.land(600, &landing)).unwrap();
+        for (i, t) in targets.into_iter().enumerate() {
+            if i % 3 == 2 {
+                assert_eq!(
+                    b.land(t, &landing).is_ok(),
+                    block_on(a.land(t, &landing)).is_ok()
+                );
+            } else {
+                assert_eq!(
+                    b.move_shaped(t, &schedule).is_ok(),
+                    block_on(a.move_shaped(t, &schedule)).is_ok()
+                );
+            }
+            assert_eq!(
+                (b.position(), b.last_approach()),
+                (a.position(), a.last_approach())
+            );
+            assert_eq!(a.position(), Some(t));
+        }
+        let (b, a): (Log, Log) = (blocking.into_inner(), asynchronous.into_inner());
+        // The landing from 20 to 600 alone is 66 writes (20, 29, …, 596, 600).
+        assert!(b.writes.len() > 66);
+        assert_eq!(b.writes, a.writes, "{layout:?}");
+        assert_eq!(b.waits_us, a.waits_us);
+        assert!(a.waits_us.contains(&5009) && a.waits_us.contains(&700));
     }
 }

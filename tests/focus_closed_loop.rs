@@ -386,7 +386,8 @@ Produced by `tests/focus_closed_loop.rs` on the simulated camera module of
 `autofocus::sim` (not on hardware); regenerate with
 `UPDATE_AUTOFOCUS=1 cargo test --test focus_closed_loop`. The same test asserts
 the thresholds below and fails if this file is stale. Each study is 1000 seeded
-runs, so the figures are exactly reproducible.
+runs, so the figures are exactly reproducible. The last section, on the lens
+carrier's dynamics, comes from `tests/actuator_dynamics.rs`.
 
 ## What is simulated
 
@@ -609,12 +610,19 @@ fn closed_loop_figures_meet_thresholds_and_doc_is_current() {
     );
     print!("{doc}");
     let path = concat!(env!("CARGO_MANIFEST_DIR"), "/docs/autofocus.md");
+    // The file goes on with the lens-carrier dynamics, which
+    // tests/actuator_dynamics.rs keeps: this test owns what comes before.
+    let committed = std::fs::read_to_string(path).unwrap_or_default();
+    let (head, dynamics) = committed.split_at(
+        committed
+            .find("\n## Lens-carrier dynamics")
+            .unwrap_or(committed.len()),
+    );
     if std::env::var_os("UPDATE_AUTOFOCUS").is_some() {
-        std::fs::write(path, &doc).unwrap();
+        std::fs::write(path, format!("{doc}{dynamics}")).unwrap();
     } else {
-        let committed = std::fs::read_to_string(path).unwrap_or_default();
         assert!(
-            committed == doc,
+            head == doc,
             "docs/autofocus.md is stale; regenerate with \
              UPDATE_AUTOFOCUS=1 cargo test --test focus_closed_loop"
         );

@@ -154,7 +154,7 @@ pub(crate) fn to_code_units<S: Scalar>(x: S) -> Result<i64, Error> {
 }
 
 /// Rounds a code in code units to the nearest integer code, ties away from zero.
-fn round_code_units(q: i64) -> i64 {
+pub(crate) fn round_code_units(q: i64) -> i64 {
     let half = 1i64 << (CODE_FRAC_BITS - 1);
     if q >= 0 {
         (q + half) >> CODE_FRAC_BITS

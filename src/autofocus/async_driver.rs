@@ -36,8 +36,9 @@
 
 use crate::autofocus::actuator::Approach;
 use crate::autofocus::driver::{
-    BusLayout, DriverError, MotionProfile, MoveState, front_end_common,
+    BusLayout, DriverError, Landing, MotionProfile, MoveState, front_end_common,
 };
+use crate::autofocus::dynamics::MoveSchedule;
 use crate::error::Error;
 use embedded_hal_async::delay::DelayNs;
 use embedded_hal_async::i2c::I2c;
@@ -65,6 +66,53 @@ impl<I2C: I2c, D: DelayNs> AsyncFocusActuatorDriver<I2C, D> {
                 .map_err(DriverError::Bus)?;
             let settle_us = self.state.written(code);
             self.delay.delay_us(settle_us).await;
+        }
+        Ok(())
+    }
+
+    /// Moves to `target` along an input shaper's `schedule`, awaiting the time
+    /// between commands; returns right after the last (see
+    /// [`FocusActuatorDriver::move_shaped`](super::driver::FocusActuatorDriver::move_shaped)).
+    /// The position must be known. If the future is dropped between commands,
+    /// the position is the last code written and the lens rings.
+    pub async fn move_shaped(
+        &mut self,
+        target: u16,
+        schedule: &MoveSchedule,
+    ) -> Result<(), DriverError<I2C::Error>> {
+        let commands = self.state.begin_shaped(target, schedule)?;
+        let mut previous_us = 0;
+        for command in &commands {
+            let (wait_us, write) = self.state.shaped_write(command, previous_us);
+            if wait_us > 0 {
+                self.delay.delay_us(wait_us).await;
+            }
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .await
+                .map_err(DriverError::Bus)?;
+            self.state.record(command.code);
+            previous_us = command.at_us;
+        }
+        Ok(())
+    }
+
+    /// Ramps gently to `target`, awaiting each ramp step and the final settle
+    /// time (see [`FocusActuatorDriver::land`](super::driver::FocusActuatorDriver::land));
+    /// from an unknown position the park code first.
+    pub async fn land(
+        &mut self,
+        target: u16,
+        landing: &Landing,
+    ) -> Result<(), DriverError<I2C::Error>> {
+        let target = self.state.begin_landing(target, landing)?;
+        while let Some((code, write, wait_us)) = self.state.next_landing_step(target, landing) {
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .await
+                .map_err(DriverError::Bus)?;
+            self.state.record(code);
+            self.delay.delay_us(wait_us).await;
         }
         Ok(())
     }

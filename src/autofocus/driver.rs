@@ -5,7 +5,18 @@
 //! A voice-coil lens is a mass on a spring: a large jump in drive current makes it
 //! ring at its resonance frequency. The driver therefore splits a move into steps
 //! of at most [`MotionProfile::max_step_codes`] and waits a settle time derived
-//! from the resonance frequency after each one.
+//! from the resonance frequency after each one ([`move_to`](FocusActuatorDriver::move_to)).
+//! Two more ways to move:
+//!
+//! - [`move_shaped`](FocusActuatorDriver::move_shaped): the move split by an
+//!   input shaper ([`MoveSchedule`], from [`dynamics::Shaper`](crate::autofocus::dynamics::Shaper))
+//!   into two or three timed commands whose ringing cancels: the lens is at
+//!   rest at the target half a damped period (ZV) after the move starts, instead
+//!   of several periods of settling;
+//! - [`land`](FocusActuatorDriver::land): a slow ramp at a given rate, for the
+//!   first move after power-up (the lens rests at a parked code: released at
+//!   full speed it would strike the end stop or the target hard) or whenever a
+//!   gentle move is wanted.
 //!
 //! ```
 //! use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
@@ -33,6 +44,7 @@
 //! ```
 
 use crate::autofocus::actuator::Approach;
+use crate::autofocus::dynamics::{Command, MAX_IMPULSES, MoveSchedule};
 use crate::error::{Error, Quantity};
 use embedded_hal::delay::DelayNs;
 use embedded_hal::i2c::I2c;
@@ -159,6 +171,31 @@ impl MotionProfile {
     }
 }
 
+/// A slow ramp for a gentle landing: the first move from an unknown position,
+/// or any move that must not jolt the lens.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Landing {
+    /// Code the lens is taken to rest at when its position is unknown: for a
+    /// voice-coil actuator the unpowered rest on its end stop, code 0 or the
+    /// start code of the travel (common practice).
+    pub park_code: u16,
+    /// Codes per ramp step (1 or more).
+    pub codes_per_step: u16,
+    /// Wait after each ramp step, µs (1 to 1 000 000). The ramp rate is
+    /// `codes_per_step / step_us`.
+    pub step_us: u32,
+}
+
+impl Landing {
+    fn check(&self) -> Result<Self, Error> {
+        if self.codes_per_step == 0 || !(1..=1_000_000).contains(&self.step_us) {
+            return Err(Error::OutOfRange(Quantity::Value));
+        }
+        Ok(*self)
+    }
+}
+
 /// A driver failure: the bus, or a request the configuration rules out.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -250,6 +287,21 @@ impl MoveState {
         Ok(target)
     }
 
+    /// The bytes that write `code`.
+    fn write_of(&self, code: u16) -> BusWrite {
+        let (buf, len) = self.layout.frame(code);
+        BusWrite { buf, len }
+    }
+
+    /// At most `max_step` codes from `at` toward `target`.
+    fn step_toward(at: u16, target: u16, max_step: u16) -> u16 {
+        if target > at {
+            at.saturating_add(max_step).min(target)
+        } else {
+            at.saturating_sub(max_step).max(target)
+        }
+    }
+
     /// The next code to write on the way to `target` and its bytes, `None` once
     /// there: from an unknown position straight to the target, otherwise at most
     /// `max_step_codes` closer.
@@ -257,17 +309,89 @@ impl MoveState {
         let code = match self.position {
             None => target,
             Some(at) if at == target => return None,
-            Some(at) if target > at => at.saturating_add(self.motion.max_step_codes).min(target),
-            Some(at) => at.saturating_sub(self.motion.max_step_codes).max(target),
+            Some(at) => Self::step_toward(at, target, self.motion.max_step_codes),
         };
-        let (buf, len) = self.layout.frame(code);
-        Some((code, BusWrite { buf, len }))
+        Some((code, self.write_of(code)))
     }
 
     /// Records a write that went through; returns the settle wait, µs.
     pub(crate) fn written(&mut self, code: u16) -> u32 {
         self.position = Some(code);
         self.motion.settle_us()
+    }
+
+    /// Starts a shaped move: the commands from the known position to `target`
+    /// (none if already there). From an unknown position the move is refused
+    /// ([`Error::OutOfRange`] of [`Quantity::ActuatorCode`]): the shaper cancels
+    /// the ringing of a move of known size only; land first.
+    pub(crate) fn begin_shaped(
+        &mut self,
+        target: u16,
+        schedule: &MoveSchedule,
+    ) -> Result<heapless::Vec<Command, MAX_IMPULSES>, Error> {
+        let from = self
+            .position
+            .ok_or(Error::OutOfRange(Quantity::ActuatorCode))?;
+        let target = self.begin(target)?;
+        if target == from {
+            return Ok(heapless::Vec::new());
+        }
+        schedule.commands(from, target)
+    }
+
+    /// One command of a shaped move: the wait before it (µs since the command
+    /// at `previous_us`) and its bytes.
+    pub(crate) fn shaped_write(&self, command: &Command, previous_us: u32) -> (u32, BusWrite) {
+        (
+            command.at_us.saturating_sub(previous_us),
+            self.write_of(command.code),
+        )
+    }
+
+    /// Starts a landing: checks the ramp and `target`, and records the direction
+    /// from the known position, or from the park code when unknown.
+    pub(crate) fn begin_landing(&mut self, target: u16, landing: &Landing) -> Result<u16, Error> {
+        let landing = landing.check()?;
+        let park = self.check_code(landing.park_code)?;
+        if self.position.is_none() {
+            let target = self.check_code(target)?;
+            if target != park {
+                self.last_approach = Some(if target > park {
+                    Approach::FromInfinity
+                } else {
+                    Approach::FromMacro
+                });
+            }
+            return Ok(target);
+        }
+        self.begin(target)
+    }
+
+    /// The next code of a landing, its bytes and the wait after it (`None`
+    /// once there): from an unknown position the park code first, then
+    /// `codes_per_step` at a time, `step_us` after each step and the settle
+    /// time after the last.
+    pub(crate) fn next_landing_step(
+        &self,
+        target: u16,
+        landing: &Landing,
+    ) -> Option<(u16, BusWrite, u32)> {
+        let code = match self.position {
+            None => landing.park_code,
+            Some(at) if at == target => return None,
+            Some(at) => Self::step_toward(at, target, landing.codes_per_step),
+        };
+        let wait = if code == target {
+            self.motion.settle_us()
+        } else {
+            landing.step_us
+        };
+        Some((code, self.write_of(code), wait))
+    }
+
+    /// Records a write that went through.
+    pub(crate) fn record(&mut self, code: u16) {
+        self.position = Some(code);
     }
 }
 
@@ -339,6 +463,83 @@ impl<I2C: I2c, D: DelayNs> FocusActuatorDriver<I2C, D> {
                 .map_err(DriverError::Bus)?;
             let settle_us = self.state.written(code);
             self.delay.delay_us(settle_us);
+        }
+        Ok(())
+    }
+
+    /// Moves to `target` along `schedule` (from [`Shaper::schedule`](crate::autofocus::dynamics::Shaper::schedule)):
+    /// writes each command at its time, waiting in between, and returns right
+    /// after the last one; on the carrier the shaper was designed for the lens
+    /// is then at rest at the target, no settle wait needed. The position must
+    /// be known (after a [`move_to`](Self::move_to), a [`land`](Self::land) or
+    /// [`assume_position`](Self::assume_position)); otherwise, and for a code
+    /// beyond the layout's width, the move is refused without a bus write.
+    ///
+    /// ```
+    /// use embedded_hal_mock::eh1::delay::{CheckedDelay, Transaction as Wait};
+    /// use embedded_hal_mock::eh1::i2c::{Mock, Transaction as Write};
+    /// use embedded_optics::autofocus::driver::{BusLayout, FocusActuatorDriver, Landing, MotionProfile};
+    /// use embedded_optics::autofocus::dynamics::{SecondOrder, Shaper};
+    /// // Our camera rig's carrier: 100 Hz (0.628 rad/ms), ζ = 0.05, shaped by ZV.
+    /// let carrier = SecondOrder::new(0.628f32, 0.05).unwrap();
+    /// let zv = Shaper::zero_vibration(&carrier).unwrap().schedule().unwrap();
+    /// let motion = MotionProfile { max_step_codes: 64, resonance_hz: 100, settle_periods: 1 };
+    /// // After power-up the lens rests at code 0: ramp 150 codes per 3 ms.
+    /// let landing = Landing { park_code: 0, codes_per_step: 150, step_us: 3000 };
+    /// let bus = Mock::new(&[
+    ///     Write::write(0x0C, vec![0x00, 0x00]), // 0, the park code
+    ///     Write::write(0x0C, vec![0x09, 0x60]), // 150
+    ///     Write::write(0x0C, vec![0x12, 0xC0]), // 300, then the settle time
+    ///     Write::write(0x0C, vec![0x14, 0xF0]), // 335 = 300 + 64/(1 + 0.854), rounded
+    ///     Write::write(0x0C, vec![0x16, 0xC0]), // 364, half a damped period later
+    /// ]);
+    /// let delay = CheckedDelay::new(&[
+    ///     Wait::delay_us(3000),
+    ///     Wait::delay_us(3000),
+    ///     Wait::delay_us(10_000),
+    ///     Wait::delay_us(5009),
+    /// ]);
+    /// let mut actuator =
+    ///     FocusActuatorDriver::new(bus, delay, BusLayout::ten_bit_word(0x0C), motion).unwrap();
+    /// actuator.land(300, &landing).unwrap();
+    /// actuator.move_shaped(364, &zv).unwrap();
+    /// let (mut bus, mut delay) = actuator.release();
+    /// bus.done();
+    /// delay.done();
+    /// ```
+    pub fn move_shaped(
+        &mut self,
+        target: u16,
+        schedule: &MoveSchedule,
+    ) -> Result<(), DriverError<I2C::Error>> {
+        let commands = self.state.begin_shaped(target, schedule)?;
+        let mut previous_us = 0;
+        for command in &commands {
+            let (wait_us, write) = self.state.shaped_write(command, previous_us);
+            if wait_us > 0 {
+                self.delay.delay_us(wait_us);
+            }
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .map_err(DriverError::Bus)?;
+            self.state.record(command.code);
+            previous_us = command.at_us;
+        }
+        Ok(())
+    }
+
+    /// Ramps gently to `target`: `landing.codes_per_step` codes every
+    /// `landing.step_us`, then the settle time. From an unknown position it
+    /// first writes the park code, where the lens is taken to rest. A code
+    /// beyond the layout's width, or a bad ramp, is refused without a bus write.
+    pub fn land(&mut self, target: u16, landing: &Landing) -> Result<(), DriverError<I2C::Error>> {
+        let target = self.state.begin_landing(target, landing)?;
+        while let Some((code, write, wait_us)) = self.state.next_landing_step(target, landing) {
+            self.i2c
+                .write(self.state.address(), write.bytes())
+                .map_err(DriverError::Bus)?;
+            self.state.record(code);
+            self.delay.delay_us(wait_us);
         }
         Ok(())
     }

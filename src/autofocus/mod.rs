@@ -5,6 +5,8 @@
 //!   distance, circle of confusion, sweep planning);
 //! - [`actuator`]: VCM or stepper code ↔ lens position ↔ subject distance, from
 //!   factory points;
+//! - [`dynamics`]: the lens carrier as a damped second-order system: step
+//!   response, settle time, identification from a recorded step, input shapers;
 //! - [`driver`]: the actuator's I²C driver on `embedded-hal` 1.0;
 //! - `async_driver` (feature `async`): the same driver on `embedded-hal-async` 1.0;
 //! - [`assist`]: focus targets from a phase-detect disparity or a range sensor;
@@ -20,6 +22,7 @@ pub mod assist;
 #[cfg(feature = "async")]
 pub mod async_driver;
 pub mod driver;
+pub mod dynamics;
 pub mod focus;
 pub mod metric;
 pub mod search;

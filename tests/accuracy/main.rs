@@ -11,6 +11,7 @@ mod cal;
 mod chain;
 mod dispersion;
 mod fit;
+mod dynamics;
 mod lens;
 mod reading;
 mod refraction;
@@ -109,6 +110,14 @@ fn all_rows() -> Vec<Row> {
         row::<afint::BlurCircle>(),
         row::<afint::DepthOfFocusAtMagnification>(),
         row::<afint::HyperfocalExtension>(),
+        row::<dynamics::StepResponse>(),
+        row::<dynamics::PeakOvershoot>(),
+        row::<dynamics::SettleTime>(),
+        row::<dynamics::EnvelopeSettleTime>(),
+        row::<dynamics::ZvSensitivity>(),
+        row::<dynamics::ZvdSensitivity>(),
+        row::<dynamics::IdentifyFrequency>(),
+        row::<dynamics::IdentifyDamping>(),
     ]
 }
 
