@@ -261,3 +261,9 @@ pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
     let n = x.floor_to_i32()?;
     Ok((n, x.sub(S::from_i32(n)?)?))
 }
+
+/// `⌊√x⌋` by shift and subtract on 64-bit words: no 128-bit arithmetic, no
+/// division, no table (integer statistics on a core without a divider).
+pub(crate) fn isqrt_u64(x: u64) -> u64 {
+    fixed_point::sqrt_shl(x, 0)
+}
