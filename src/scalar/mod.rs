@@ -7,7 +7,8 @@
 //!
 //! Every operation returns a [`Result`]: a float result that is not finite, or a
 //! fixed-point result that does not fit, is an [`Error`], never a wrapped or
-//! silently saturated number. Routines use `?` after each step.
+//! silently saturated number. Routines use `?` after each step, except where a
+//! range is proved: there the `*_proved` operations, the proof beside the call.
 //!
 //! Constants inside routines are written with [`lit!`](crate::lit), which converts
 //! an `f64` literal to the target format at compile time: a Cortex-M0 build pays
