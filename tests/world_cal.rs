@@ -28,6 +28,40 @@ fn crc32_check_value() {
     // CRC-32/ISO-HDLC check value (CRC RevEng catalogue): 0xCBF43926.
     assert_eq!(crc32(b"123456789"), 0xCBF4_3926);
     assert_eq!(crc32(b""), 0);
+    // The same CRC of the English pangram: 0x414FA339 (from memory).
+    assert_eq!(
+        crc32(b"The quick brown fox jumps over the lazy dog"),
+        0x414F_A339
+    );
+}
+
+#[test]
+fn crc32_equals_the_byte_table_on_random_data() {
+    // Reference: the `crc` crate's byte-wise table implementation of
+    // CRC-32/ISO-HDLC (`crc::Crc::<u32>`, its default 256-entry table).
+    let table = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
+    let mut rng = embedded_optics::rng::Rng::new(0xC4C3_2022);
+    let mut bytes = [0u8; 300];
+    for len in 0..=bytes.len() {
+        for _ in 0..8 {
+            for b in bytes.iter_mut().take(len) {
+                *b = rng.below(256) as u8;
+            }
+            assert_eq!(
+                crc32(&bytes[..len]),
+                table.checksum(&bytes[..len]),
+                "{len} bytes"
+            );
+        }
+    }
+    // Whole records as written, and each with one bit flipped.
+    let mut record = sample_record(7).encode();
+    for bit in 0..RECORD_LEN * 8 {
+        assert_eq!(crc32(&record), table.checksum(&record));
+        record[bit / 8] ^= 1 << (bit % 8);
+        assert_eq!(crc32(&record), table.checksum(&record), "bit {bit}");
+        record[bit / 8] ^= 1 << (bit % 8);
+    }
 }
 
 fn sample_record(sequence: u32) -> CalibrationRecord {

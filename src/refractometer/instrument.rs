@@ -148,6 +148,7 @@ use crate::refractometer::calibration::{self, Standard};
 use crate::refractometer::geometry::{
     Correction, Geometry, GeometryDescription, IndexAtPosition, check_described,
 };
+use crate::refractometer::position_average::{MOST_FRAMES, PositionSums};
 use crate::refractometer::record::{CalibrationRecord, SlotChoice};
 use crate::refractometer::{
     CompensationNote, SampleCompensation, TradeScale, WavelengthCorrection,
@@ -159,6 +160,7 @@ use crate::scalar::split_floor;
 pub const SETTLE_MAX: usize = 8;
 /// Most frames averaged into one reading.
 pub const FRAMES_MAX: u8 = 64;
+const _: () = assert!(FRAMES_MAX <= MOST_FRAMES, "the position sums' ranges");
 
 /// Everything fixed about one instrument design. Plain numbers: a `const`.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -264,11 +266,8 @@ pub struct Instrument<S, P, W, C, T> {
     settle_len: usize,
     band_nd: S,
     band_c: S,
-    // Frame averaging.
-    count: u8,
-    position_sum: i64,
-    position_squares: i128,
-    variance_sum: i64,
+    // Frame averaging: the partial average's positions, none between averages.
+    positions: Option<PositionSums>,
     temperature_mean: S,
     // Settling window: (nD20, temperature) of recent readings.
     history: [(S, S); SETTLE_MAX],
@@ -367,10 +366,7 @@ where
             settle_len: usize::from(d.settle_readings),
             band_nd: described(d.settle_band_nd, 0.0, 0.01, Quantity::RefractiveIndex)?,
             band_c: described(d.settle_band_c, 0.0, 10.0, Quantity::Temperature)?,
-            count: 0,
-            position_sum: 0,
-            position_squares: 0,
-            variance_sum: 0,
+            positions: None,
             temperature_mean: S::ZERO,
             history: [(S::ZERO, S::ZERO); SETTLE_MAX],
             history_len: 0,
@@ -431,7 +427,7 @@ where
 
     /// Forgets partial averages and the settling history (new sample).
     pub fn restart(&mut self) {
-        self.count = 0;
+        self.positions = None;
         self.history_len = 0;
         self.history_next = 0;
     }
@@ -454,52 +450,39 @@ where
         let (t, b) = match (t, b) {
             (Ok(t), Ok(b)) => (t, b),
             (Err(e), _) | (_, Err(e)) => {
-                self.count = 0;
+                self.positions = None;
                 return Err(e);
             }
         };
-        if self.count == 0 {
-            self.position_sum = 0;
-            self.position_squares = 0;
-            self.variance_sum = 0;
-            self.temperature_mean = t;
-        }
-        self.count += 1;
-        self.position_sum += i64::from(b.position);
-        self.position_squares += i128::from(b.position).pow(2);
-        self.variance_sum += i64::from(b.uncertainty).pow(2);
+        let sums = match &mut self.positions {
+            Some(sums) => {
+                sums.add(b.position, b.uncertainty);
+                sums
+            }
+            None => {
+                self.temperature_mean = t;
+                self.positions
+                    .insert(PositionSums::first(b.position, b.uncertainty))
+            }
+        };
+        let sums = *sums;
+        let frames = sums.frames().get();
         // Running mean keeps the temperature inside narrow fixed-point ranges.
-        let k = S::from_i32(i32::from(self.count))?;
+        let k = S::from_i32(i32::from(frames))?;
         self.temperature_mean = self
             .temperature_mean
             .add(t.sub(self.temperature_mean)?.div(k)?)?;
-        if self.count < self.frames {
+        if frames < self.frames {
             return Ok(None);
         }
-        let n = i64::from(self.count);
-        self.count = 0;
-        let position = i32::try_from((self.position_sum + n / 2).div_euclid(n))
-            .map_err(|_| Error::Overflow)?;
-        // Type B from each frame's noise, u(mean) = √(Σu²) / n; Type A from the
-        // frames' scatter, s / √n. The larger is kept: the per-frame estimate
-        // reads low on long-tailed edges, the scatter of a few frames is itself
-        // uncertain.
-        let type_b = (self.variance_sum.max(0) as u64).isqrt() as i64 / n;
-        let type_a = if n > 1 {
-            let (sum, n128) = (i128::from(self.position_sum), i128::from(n));
-            let ss = (self.position_squares - sum * sum / n128).max(0);
-            let var_mean = ss / (n128 * (n128 - 1));
-            i64::try_from((var_mean as u128).isqrt()).unwrap_or(i64::MAX)
-        } else {
-            0
-        };
-        let u = type_a.max(type_b);
+        self.positions = None;
+        let (position, position_uncertainty) = sums.mean()?;
         Ok(Some(Averaged {
             position,
-            position_uncertainty: i32::try_from(u).unwrap_or(i32::MAX),
+            position_uncertainty,
             temperature_c: self.temperature_mean,
             boundary: b,
-            frames: u8::try_from(n).unwrap_or(u8::MAX),
+            frames,
         }))
     }
 

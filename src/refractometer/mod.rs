@@ -179,6 +179,7 @@ pub mod freezing;
 pub mod geometry;
 pub mod glycerol;
 pub mod instrument;
+mod position_average;
 pub mod prepare;
 pub mod reading;
 pub mod scales;

@@ -8,6 +8,8 @@
 
 mod long_arith;
 
+pub(super) use long_arith::sqrt_shl;
+
 use super::fixed_math::{self as fm, Q};
 use super::{Format, Scalar};
 use crate::error::Error;

@@ -7,7 +7,8 @@
 //!
 //! Every operation returns a [`Result`]: a float result that is not finite, or a
 //! fixed-point result that does not fit, is an [`Error`], never a wrapped or
-//! silently saturated number. Routines use `?` after each step.
+//! silently saturated number. Routines use `?` after each step, except where a
+//! range is proved: there the `*_proved` operations, the proof beside the call.
 //!
 //! Constants inside routines are written with [`lit!`](crate::lit), which converts
 //! an `f64` literal to the target format at compile time: a Cortex-M0 build pays
@@ -267,4 +268,10 @@ pub trait Scalar: Copy + PartialOrd + Debug + Send + Sync + 'static {
 pub(crate) fn split_floor<S: Scalar>(x: S) -> Result<(i32, S), Error> {
     let n = x.floor_to_i32()?;
     Ok((n, x.sub(S::from_i32(n)?)?))
+}
+
+/// `⌊√x⌋` by shift and subtract on 64-bit words: no 128-bit arithmetic, no
+/// division, no table (integer statistics on a core without a divider).
+pub(crate) fn isqrt_u64(x: u64) -> u64 {
+    fixed_point::sqrt_shl(x, 0)
 }

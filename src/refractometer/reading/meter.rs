@@ -33,7 +33,7 @@ use super::prepared::{CodeTable, CorrectionGrid, PositionMap, TemperatureLine};
 use super::record::{CalibrationRecord, Correction, SlotChoice};
 use crate::error::{Error, Quantity};
 use crate::lit;
-use crate::scalar::Scalar;
+use crate::scalar::{Scalar, isqrt_u64};
 
 /// Longest settling window, readings.
 pub const SETTLE_WINDOW_MAX: usize = 8;
@@ -143,25 +143,6 @@ pub struct BrixMeter<'a, S> {
     window: [(S, S); SETTLE_WINDOW_MAX],
     window_len: u8,
     window_next: u8,
-}
-
-/// Integer square root of a `u64` (shift and subtract; no division).
-fn isqrt_u64(x: u64) -> u64 {
-    let (mut rem, mut root) = (x, 0u64);
-    let mut bit = 1u64 << 62;
-    while bit > x {
-        bit >>= 2;
-    }
-    while bit != 0 {
-        if rem >= root + bit {
-            rem -= root + bit;
-            root = (root >> 1) + bit;
-        } else {
-            root >>= 1;
-        }
-        bit >>= 2;
-    }
-    root
 }
 
 impl<'a, S: Scalar> BrixMeter<'a, S> {

@@ -127,7 +127,7 @@ fn div_words(mut rem: u64, mut lo: u64, d: u64) -> u64 {
 }
 
 /// `floor(√(x·4^zero_pairs))`, for a result below 2^61.
-pub(super) fn sqrt_shl(x: u64, zero_pairs: u32) -> u64 {
+pub(in crate::scalar) fn sqrt_shl(x: u64, zero_pairs: u32) -> u64 {
     // Digit by digit, two bits of the radicand per step from its first non-zero
     // pair: the pairs of x moved to the top of a word (the zero pairs this adds
     // at the bottom are the first of `zero_pairs`), then the remaining zero
