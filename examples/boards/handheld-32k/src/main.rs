@@ -160,8 +160,43 @@ fn finish(ok: bool) -> ! {
     }
 }
 
+/// Fill pattern of the stack painter (the whole image's stack high-water mark
+/// is logged at the end: RAM is 8 KiB).
+const PAINT: u32 = 0xC0FF_EE55;
+
+unsafe extern "C" {
+    /// First free RAM word after .data/.bss (cortex-m-rt): the stack's floor.
+    static __sheap: u32;
+    /// Top of the stack (cortex-m-rt).
+    static _stack_start: u32;
+}
+
+/// Paints the free stack below this frame.
+#[inline(never)]
+fn paint() {
+    let top = cortex_m::register::msp::read() as usize - 16;
+    let mut a = core::ptr::addr_of!(__sheap) as usize;
+    while a < top {
+        // SAFETY: [floor, sp - 16) is unused stack, word aligned, in RAM.
+        unsafe { core::ptr::write_volatile(a as *mut u32, PAINT) };
+        a += 4;
+    }
+}
+
+/// Stack bytes the image has used since [`paint`]: from the top of RAM to
+/// the lowest word written.
+fn stack_used() -> usize {
+    let mut a = core::ptr::addr_of!(__sheap) as usize;
+    // SAFETY: reads of the painted region; stops at the first touched word.
+    while unsafe { core::ptr::read_volatile(a as *const u32) } == PAINT {
+        a += 4;
+    }
+    (core::ptr::addr_of!(_stack_start) as usize).saturating_sub(a)
+}
+
 #[entry]
 fn main() -> ! {
+    paint();
     let Ok(mut store) = CalibrationStore::on_nor_flash(StorePages, 0) else {
         defmt::error!("calibration store: the pages do not fit the flash");
         finish(false)
@@ -235,6 +270,11 @@ fn main() -> ! {
     if ok {
         defmt::info!("{=usize} readings bit-exact with the host", EXPECTED.len());
     }
+    defmt::info!(
+        "RAM: meter object {=usize} B, stack high-water {=usize} B (whole run, frame buffer included)",
+        core::mem::size_of::<BrixMeter<'static, I8F24>>(),
+        stack_used()
+    );
     finish(ok)
 }
 
