@@ -111,6 +111,60 @@ fn knots(n: f64, t: f64) -> Vec<(u16, u16)> {
     out
 }
 
+/// The run on the host in the image's number type: water zero, span, the
+/// record as the store gives it back after the restart, the samples; each
+/// reading as raw bits.
+fn readings<S: Scalar>(design: &MeterDesign, frames: &[(Vec<(u16, u16)>, u16)]) -> Vec<String> {
+    let mut meter = BrixMeter::<S>::new(design).expect("meter");
+    let mut frame = [0u16; PIXELS];
+    let mut mean_of = |meter: &mut BrixMeter<S>, k: usize| {
+        unpack(&frames[k].0, &mut frame);
+        meter
+            .feed(&frame, frames[k].1)
+            .expect("feed")
+            .expect("one frame a reading")
+    };
+    let m = mean_of(&mut meter, 0);
+    meter.zero_with_water(&m).expect("zero");
+    let m = mean_of(&mut meter, 1);
+    meter
+        .span(&m, S::from_f64(SPAN_BRIX).expect("span value"))
+        .expect("span");
+    let blank = embedded_optics::refractometer::record::choose_slots(&[0xFF; 64], &[0xFF; 64]);
+    let record = meter.calibration_record(&blank).expect("record");
+    let mut meter = BrixMeter::<S>::new(design).expect("meter");
+    meter
+        .restore(&embedded_optics::refractometer::record::CalibrationRecord {
+            sequence: 1,
+            ..record
+        })
+        .expect("restore");
+    let mut expected = Vec::new();
+    for k in 2..frames.len() {
+        let m = mean_of(&mut meter, k);
+        let r = meter.read(&m).expect("reading");
+        let brix = r.brix.map(|b| b.raw_bits() as i32).unwrap_or(i32::MIN);
+        expected.push(format!(
+            "Expected {{ nd20: {}, brix: {}, u_nd20: {}, u_brix: {}, settled: {} }}",
+            r.nd20.raw_bits() as i32,
+            brix,
+            r.u_nd20.raw_bits() as i32,
+            r.u_brix.raw_bits() as i32,
+            r.settled
+        ));
+        if std::env::var_os("BOARD_VERBOSE").is_some() {
+            println!(
+                "cargo:warning=host: nD20 {:.6} %Brix {:.3} ± {:.3} (k=1) at {:.2} °C",
+                r.nd20.to_f64(),
+                r.brix.map(|b| b.to_f64()).unwrap_or(f64::NAN),
+                r.u_brix.to_f64(),
+                r.temperature_c.to_f64()
+            );
+        }
+    }
+    expected
+}
+
 fn at_led(brix: f64, t: f64) -> f64 {
     let nd20 = SucroseBrix.nd20_at(brix).expect("brix");
     standard_reference(
@@ -165,56 +219,12 @@ fn main() {
         settle_band_e8: 2000,
         settle_band_mc: 100,
     };
-    let mut meter = BrixMeter::<I8F24>::new(&design).expect("meter");
-    let mut frame = [0u16; PIXELS];
-    let mut mean_of = |meter: &mut BrixMeter<I8F24>, k: usize| {
-        unpack(&frames[k].0, &mut frame);
-        meter
-            .feed(&frame, frames[k].1)
-            .expect("feed")
-            .expect("one frame a reading")
+    // The image's number type: f32 on a core with an FPU, else I8F24.
+    let expected = if std::env::var("TARGET").is_ok_and(|t| t.ends_with("eabihf")) {
+        readings::<f32>(&design, &frames)
+    } else {
+        readings::<I8F24>(&design, &frames)
     };
-    let m = mean_of(&mut meter, 0);
-    meter.zero_with_water(&m).expect("zero");
-    let m = mean_of(&mut meter, 1);
-    meter.span(&m, I8F24::from_num(SPAN_BRIX)).expect("span");
-    // After the restart the meter has only the record: the host does the same.
-    let record = meter
-        .calibration_record(&embedded_optics::refractometer::record::choose_slots(
-            &[0xFF; 64],
-            &[0xFF; 64],
-        ))
-        .expect("record");
-    let mut meter = BrixMeter::<I8F24>::new(&design).expect("meter");
-    meter
-        .restore(&embedded_optics::refractometer::record::CalibrationRecord {
-            sequence: 1,
-            ..record
-        })
-        .expect("restore");
-    let mut expected = Vec::new();
-    for k in 2..frames.len() {
-        let m = mean_of(&mut meter, k);
-        let r = meter.read(&m).expect("reading");
-        let brix = r.brix.map(|b| b.raw_bits() as i32).unwrap_or(i32::MIN);
-        expected.push(format!(
-            "Expected {{ nd20: {}, brix: {}, u_nd20: {}, u_brix: {}, settled: {} }}",
-            r.nd20.raw_bits() as i32,
-            brix,
-            r.u_nd20.raw_bits() as i32,
-            r.u_brix.raw_bits() as i32,
-            r.settled
-        ));
-        if std::env::var_os("BOARD_VERBOSE").is_some() {
-            println!(
-                "cargo:warning=host: nD20 {:.6} %Brix {:.3} ± {:.3} (k=1) at {:.2} °C",
-                r.nd20.to_f64(),
-                r.brix.map(|b| b.to_f64()).unwrap_or(f64::NAN),
-                r.u_brix.to_f64(),
-                r.temperature_c.to_f64()
-            );
-        }
-    }
     writeln!(
         src,
         "/// Test frames as knots, and the thermistor code read with each."
@@ -232,7 +242,7 @@ fn main() {
     writeln!(src, "];").unwrap();
     writeln!(
         src,
-        "/// The host's readings of FRAMES[2..], as raw I8F24 bits."
+        "/// The host's readings of FRAMES[2..], as the number type's raw bits."
     )
     .unwrap();
     writeln!(

@@ -21,7 +21,38 @@ use embedded_optics::refractometer::reading::prepared::{CodeTable, PositionMap, 
 use embedded_optics::refractometer::reading::store::CalibrationStore;
 use embedded_optics::refractometer::reading::tables::OIV_GRID;
 use embedded_storage::nor_flash::{ErrorType, NorFlash, NorFlashErrorKind, ReadNorFlash};
+#[cfg(not(target_abi = "eabihf"))]
 use fixed::types::I8F24;
+
+/// The number type: I8F24 on a core without FPU (Cortex-M0+), f32 on one
+/// with a single-precision FPU (Cortex-M4F, the same image built for
+/// `thumbv7em-none-eabihf`).
+#[cfg(not(target_abi = "eabihf"))]
+type Num = I8F24;
+#[cfg(target_abi = "eabihf")]
+type Num = f32;
+
+/// The raw bits the host's readings are kept as.
+fn bits(x: Num) -> i32 {
+    #[cfg(not(target_abi = "eabihf"))]
+    return x.to_bits();
+    #[cfg(target_abi = "eabihf")]
+    return x.to_bits() as i32;
+}
+
+/// `x` as an integer count of `1/per` (for the log: no float formatting on
+/// the device; `i32::MIN` stays as it is).
+fn scaled_num(x: Num, per: i64) -> i32 {
+    #[cfg(not(target_abi = "eabihf"))]
+    return scaled(x.to_bits(), per);
+    #[cfg(target_abi = "eabihf")]
+    return libm_free_round(x * per as f32);
+}
+
+#[cfg(target_abi = "eabihf")]
+fn libm_free_round(x: f32) -> i32 {
+    (if x < 0.0 { x - 0.5 } else { x + 0.5 }) as i32
+}
 
 #[allow(dead_code)] // the run's description is the build script's too
 mod design;
@@ -63,11 +94,16 @@ static METER: MeterDesign<'static> = MeterDesign {
 struct StorePages;
 
 const STORE_BASE: u32 = 32 * 1024 - 4 * 1024;
+#[cfg(not(target_abi = "eabihf"))]
 const NVMC: usize = 0x4001_E000;
+#[cfg(not(target_abi = "eabihf"))]
 const NVMC_READY: usize = NVMC + 0x400;
+#[cfg(not(target_abi = "eabihf"))]
 const NVMC_CONFIG: usize = NVMC + 0x504;
+#[cfg(not(target_abi = "eabihf"))]
 const NVMC_ERASEPAGE: usize = NVMC + 0x508;
 
+#[cfg(not(target_abi = "eabihf"))]
 fn nvmc_write(reg: usize, value: u32) {
     // SAFETY: a register of the flash controller, written as its manual says.
     unsafe { core::ptr::write_volatile(reg as *mut u32, value) }
@@ -104,17 +140,27 @@ impl NorFlash for StorePages {
         if from % 2048 != 0 || to % 2048 != 0 || to > 4096 || from > to {
             return Err(NorFlashErrorKind::NotAligned);
         }
-        nvmc_write(NVMC_CONFIG, 2);
-        for page in (from..to).step_by(1024) {
-            nvmc_write(NVMC_ERASEPAGE, STORE_BASE + page);
+        #[cfg(not(target_abi = "eabihf"))]
+        {
+            nvmc_write(NVMC_CONFIG, 2);
+            for page in (from..to).step_by(1024) {
+                nvmc_write(NVMC_ERASEPAGE, STORE_BASE + page);
+            }
+            nvmc_write(NVMC_CONFIG, 0);
         }
-        nvmc_write(NVMC_CONFIG, 0);
+        // QEMU's mps2 boards have no flash controller: the pages are memory.
+        #[cfg(target_abi = "eabihf")]
+        for at in (from..to).step_by(4) {
+            // SAFETY: a word of the store's pages (checked above).
+            unsafe { core::ptr::write_volatile((STORE_BASE + at) as usize as *mut u32, u32::MAX) };
+        }
         Ok(())
     }
     fn write(&mut self, offset: u32, bytes: &[u8]) -> Result<(), Self::Error> {
         if offset % 4 != 0 || bytes.len() % 4 != 0 || offset as usize + bytes.len() > 4096 {
             return Err(NorFlashErrorKind::NotAligned);
         }
+        #[cfg(not(target_abi = "eabihf"))]
         nvmc_write(NVMC_CONFIG, 1);
         for (k, w) in bytes.chunks_exact(4).enumerate() {
             let word = u32::from_le_bytes([w[0], w[1], w[2], w[3]]);
@@ -122,19 +168,30 @@ impl NorFlash for StorePages {
             // SAFETY: a word of the store's pages, with writes enabled.
             unsafe { core::ptr::write_volatile(at as *mut u32, word) };
             // SAFETY: the controller's READY register, read-only.
+            #[cfg(not(target_abi = "eabihf"))]
             while unsafe { core::ptr::read_volatile(NVMC_READY as *const u32) } & 1 == 0 {}
         }
+        #[cfg(not(target_abi = "eabihf"))]
         nvmc_write(NVMC_CONFIG, 0);
         Ok(())
     }
 }
 
+/// The span standard's %Brix in the number type (no float conversion on a
+/// core without FPU).
+fn span_brix() -> Num {
+    #[cfg(not(target_abi = "eabihf"))]
+    return I8F24::from_bits((SPAN_BRIX as i32) << 24);
+    #[cfg(target_abi = "eabihf")]
+    return SPAN_BRIX as f32;
+}
+
 /// The mean of the next reading's frames from stored frame `k`.
 fn mean_of(
-    meter: &mut BrixMeter<'static, I8F24>,
+    meter: &mut BrixMeter<'static, Num>,
     k: usize,
     frame: &mut [u16; PIXELS],
-) -> Option<embedded_optics::refractometer::reading::meter::Mean<I8F24>> {
+) -> Option<embedded_optics::refractometer::reading::meter::Mean<Num>> {
     let (knots, code) = FRAMES.get(k)?;
     unpack(knots, frame);
     meter.feed(&frame[..], *code).ok().flatten()
@@ -142,6 +199,7 @@ fn mean_of(
 
 /// I8F24 bits as an integer count of `1/per` (for the log: no float
 /// formatting on the device; `i32::MIN` stays as it is).
+#[cfg(not(target_abi = "eabihf"))]
 fn scaled(bits: i32, per: i64) -> i32 {
     if bits == i32::MIN {
         return bits;
@@ -201,7 +259,7 @@ fn main() -> ! {
         defmt::error!("calibration store: the pages do not fit the flash");
         finish(false)
     };
-    let Ok(mut meter) = BrixMeter::<I8F24>::new(&METER) else {
+    let Ok(mut meter) = BrixMeter::<Num>::new(&METER) else {
         finish(false)
     };
     let mut frame = [0u16; PIXELS];
@@ -212,8 +270,7 @@ fn main() -> ! {
                 SPAN_BRIX as f32
             );
             let zeroed = mean_of(&mut meter, 0, &mut frame).map(|m| meter.zero_with_water(&m));
-            let spanned = mean_of(&mut meter, 1, &mut frame)
-                .map(|m| meter.span(&m, I8F24::from_bits((SPAN_BRIX as i32) << 24)));
+            let spanned = mean_of(&mut meter, 1, &mut frame).map(|m| meter.span(&m, span_brix()));
             if !matches!((zeroed, spanned), (Some(Ok(())), Some(Ok(())))) {
                 defmt::error!("calibration failed");
                 finish(false)
@@ -245,22 +302,22 @@ fn main() -> ! {
             defmt::error!("sample {=usize}: no reading", k);
             finish(false)
         };
-        let brix = r.brix.map(|b| b.to_bits()).unwrap_or(i32::MIN);
+        let brix = r.brix.map(bits).unwrap_or(i32::MIN);
         defmt::info!(
             "sample {=usize}: nD20 {=i32}e-6 ± {=i32}e-6, {=i32}e-3 %Brix ± {=i32}e-3 (k=1), {=i32}e-3 °C, settled {=bool}, calibration {=u32}",
             k,
-            scaled(r.nd20.to_bits(), 1_000_000),
-            scaled(r.u_nd20.to_bits(), 1_000_000),
-            scaled(brix, 1000),
-            scaled(r.u_brix.to_bits(), 1000),
-            scaled(r.temperature_c.to_bits(), 1000),
+            scaled_num(r.nd20, 1_000_000),
+            scaled_num(r.u_nd20, 1_000_000),
+            r.brix.map(|b| scaled_num(b, 1000)).unwrap_or(i32::MIN),
+            scaled_num(r.u_brix, 1000),
+            scaled_num(r.temperature_c, 1000),
             r.settled,
             r.calibration
         );
-        let same = r.nd20.to_bits() == want.nd20
+        let same = bits(r.nd20) == want.nd20
             && brix == want.brix
-            && r.u_nd20.to_bits() == want.u_nd20
-            && r.u_brix.to_bits() == want.u_brix
+            && bits(r.u_nd20) == want.u_nd20
+            && bits(r.u_brix) == want.u_brix
             && r.settled == want.settled;
         if !same {
             defmt::error!("sample {=usize} differs from the host", k);
@@ -272,7 +329,7 @@ fn main() -> ! {
     }
     defmt::info!(
         "RAM: meter object {=usize} B, stack high-water {=usize} B (whole run, frame buffer included)",
-        core::mem::size_of::<BrixMeter<'static, I8F24>>(),
+        core::mem::size_of::<BrixMeter<'static, Num>>(),
         stack_used()
     );
     finish(ok)
