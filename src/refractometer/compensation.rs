@@ -470,8 +470,9 @@ impl SucroseCorrectionTable {
                 .map(|&v| i64::from(v))
         };
         // Weights (dt − from, from) along each axis; a zero weight's cell
-        // is not read. Any real table (steps under 2^15 °C and %Brix, cells
-        // under 2^15) keeps the sum under 2^62.
+        // is not read. Real tables (steps of a few °C and %Brix) stay far
+        // inside i32; a table whose steps would not is an overflow.
+        let overflow = Error::Overflow;
         let mut num = 0i64;
         for (row, wr) in [(r, dt - dt_from), (r + 1, dt_from)] {
             for (col, wc) in [(c, db - db_from), (c + 1, db_from)] {
@@ -481,26 +482,32 @@ impl SucroseCorrectionTable {
                 let Some(v) = cell(row, col) else {
                     return Ok(None);
                 };
-                num += v * i64::from(wr) * i64::from(wc);
+                num = wr
+                    .checked_mul(wc)
+                    .and_then(|w| w.checked_mul(v))
+                    .and_then(|x| num.checked_add(x))
+                    .ok_or(overflow)?;
             }
         }
-        let den = i64::from(dt) * i64::from(db) * 100;
+        let den = dt
+            .checked_mul(db)
+            .and_then(|d| d.checked_mul(100))
+            .ok_or(overflow)?;
         match (i32::try_from(num), i32::try_from(den)) {
             (Ok(n), Ok(d)) => S::from_ratio(n, d).map(Some),
-            _ => Err(Error::Overflow),
+            _ => Err(overflow),
         }
     }
 }
 
-/// Where a whole `v` lies on an integer axis: the first `i` with
-/// `axis[i] ≤ v ≤ axis[i+1]`, `v − axis[i]` and the step; a one-entry axis
-/// holds its entry with step 1.
-fn place(axis: &[i32], v: i32) -> Option<(usize, i32, i32)> {
-    if let [only] = axis {
-        return (*only == v).then_some((0, 0, 1));
-    }
+/// Where a whole `v` lies on an integer axis, as [`bracket`] places it: the
+/// first `i` with `axis[i] ≤ v ≤ axis[i+1]`, `v − axis[i]` and the step (in
+/// 64 bits: any two `i32` entries).
+fn place(axis: &[i32], v: i32) -> Option<(usize, i64, i64)> {
     axis.windows(2).enumerate().find_map(|(i, w)| match *w {
-        [a, b] if a <= v && v <= b && b > a => Some((i, v - a, b - a)),
+        [a, b] if a <= v && v <= b && b > a => {
+            Some((i, i64::from(v) - i64::from(a), i64::from(b) - i64::from(a)))
+        }
         _ => None,
     })
 }
