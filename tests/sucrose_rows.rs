@@ -89,7 +89,8 @@ fn rows_read_the_juice_table_cells_bilinearly() {
 /// Readings off whole degrees, 4.5–40.5 °C, across the apparent %Brix range.
 fn sweep() -> impl Iterator<Item = (f64, f64)> {
     (0..144).flat_map(|i| {
-        // Quarter degrees, never a whole one (the tables step there).
+        // Quarter degrees, never a whole one (the tables end there and the
+        // correction changes its form).
         let t = 4.5 + 0.25 * i as f64 + 0.0625;
         (0..=880).map(move |k| (t, 1.3290 + 2e-4 * k as f64))
     })
@@ -128,6 +129,36 @@ fn rows_follow_the_compensation_they_prepare() {
         // The juice table reads 0 to −0.14 %Brix as its 0 column; the rows
         // interpolate there towards the model (a few readings).
         assert!(basis <= 10, "{basis}");
+    }
+}
+
+#[test]
+fn rows_meet_the_compensation_on_whole_degrees_too() {
+    // A grid of 0.025 K × 1e-4 nD over 4.5–40.5 °C, whole degrees (where the
+    // tables end) included: the exact compensation has no step there, so
+    // the rows, taken each on its own interval, agree on both sides.
+    for exact in [SucroseCompensation::oiv(), SucroseCompensation::juice_lab()] {
+        let mut rows = SucroseRows::<f64>::new(exact);
+        let (mut n, mut worst, mut at) = (0, 0f64, (0.0, 0.0));
+        for i in 0..=1440 {
+            let t = 4.5 + 0.025 * f64::from(i);
+            for k in 0..=1761 {
+                let nd = 1.3290 + 1e-4 * f64::from(k);
+                let (Ok(a), Ok(b)) = (rows.compensate_prepared(nd, t), exact.compensate(nd, t))
+                else {
+                    continue;
+                };
+                n += 1;
+                let d = (a.nd20 - b.nd20).abs();
+                if d > worst {
+                    (worst, at) = (d, (t, nd));
+                }
+            }
+        }
+        println!("{n} readings, whole degrees included: nD20 within {worst:.2e} (at {at:?})");
+        assert!(n > 2_400_000, "{n}");
+        // Measured 6.4e-7 nD (OIV Table I), 5.6e-7 (juice table).
+        assert!(worst < 1e-6, "{worst} at {at:?}");
     }
 }
 
@@ -238,7 +269,8 @@ proptest! {
                     assert!(a.nd20.is_finite() && a.per_nd.is_finite() && a.per_kelvin.is_finite());
                     let d = (a.nd20.to_f64() - b.nd20.to_f64()).abs();
                     // Off the sweep's grid and on whole degrees (where the
-                    // tables step) the rows take the interval's own side.
+                    // correction changes its form) the rows take the
+                    // interval's own side.
                     assert!(d < 5e-5, "{nd} {t}: {d}");
                 }
                 (Err(a), Err(b)) => assert_eq!(a, b),

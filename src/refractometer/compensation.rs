@@ -18,7 +18,7 @@
 //! shows the reading as uncompensated, it never gets an extrapolated one.
 
 use super::scales::{SucroseBrix, apparent_brix, sucrose_cell_slope, sucrose_slope};
-use super::sucrose_temperature::model_correction;
+use super::sucrose_temperature::{ModelTerms, model_correction, polynomial};
 use super::table::{Raw, div_round};
 use super::{
     Compensated, CompensationBasis, CompensationNote, SampleCompensation, SampleDomain, TradeScale,
@@ -26,7 +26,7 @@ use super::{
 use crate::error::{Error, Quantity};
 use crate::lit;
 use crate::media::Medium;
-use crate::scalar::Scalar;
+use crate::scalar::{Scalar, split_floor};
 
 /// The trade tables' reference temperature, °C.
 pub const REFERENCE_C: f64 = 20.0;
@@ -366,11 +366,18 @@ impl SucroseCorrectionTable {
 /// turned back to nD at 20 °C. So water and dilute samples read warm
 /// compensate as sugar solutions do.
 ///
-/// Outside the table's cells the model's correction is joined to the table's
-/// nearest cell: the difference there is carried and fades out linearly over
-/// [`JOIN_FADE_C`] kelvins and [`JOIN_FADE_BRIX`] %Brix, so that the
-/// correction has no step at the table's edge. Such points are
-/// [`CompensationBasis::Model`] with the model's uncertainty.
+/// Outside the table's cells the correction is the model plus a
+/// table-minus-model offset that is continuous everywhere: the offset is
+/// taken at the table's nodes on a lattice of whole degrees × 5 %Brix, fades
+/// to zero over [`JOIN_FADE_C`] kelvins (lattice rows) and [`JOIN_FADE_BRIX`]
+/// %Brix (one lattice column) from them, and is read bilinearly; next to the
+/// table a term in the model's own curvature makes it meet the table's
+/// bilinear cells exactly. So the correction has no step at a table's edge
+/// (its first and last rows, a ragged row's end, its last column). Such
+/// points are [`CompensationBasis::Model`] with the model's uncertainty; the
+/// basis and the uncertainty change at the table's edge, the correction does
+/// not (`tests/compensation_continuity.rs` scans the range at 0.01 K ×
+/// 0.01 %Brix).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SucroseCompensation {
@@ -378,10 +385,16 @@ pub struct SucroseCompensation {
 }
 
 /// Kelvins over which the table-minus-model difference at the table's edge
-/// fades out.
-pub const JOIN_FADE_C: f64 = 5.0;
-/// %Brix over which the same difference fades out along the sugar content.
-pub const JOIN_FADE_BRIX: f64 = 5.0;
+/// fades out (whole degrees: the offset lattice's rows).
+pub const JOIN_FADE_C: f64 = FADE_ROWS as f64;
+/// %Brix over which the same difference fades out along the sugar content:
+/// the offset lattice's column step.
+pub const JOIN_FADE_BRIX: f64 = LATTICE_BRIX as f64;
+
+/// Lattice rows (whole degrees) of the fade along temperature.
+const FADE_ROWS: i32 = 5;
+/// %Brix between the offset lattice's columns (the tables' column step).
+const LATTICE_BRIX: i32 = 5;
 
 /// A sucrose temperature correction with what it rests on: the correction in
 /// %Brix for a reading taken at a temperature, its partial derivatives (for
@@ -401,24 +414,6 @@ pub struct SucroseCorrection<S> {
     pub uncertainty: S,
     /// Table or model.
     pub basis: CompensationBasis,
-}
-
-/// `max(0, 1 − |d|/width)` and its derivative in `d`.
-fn fade<S: Scalar>(d: S, width: S) -> Result<(S, S), Error> {
-    let w = S::ONE.sub(d.abs()?.div(width)?)?;
-    if w <= S::ZERO {
-        return Ok((S::ZERO, S::ZERO));
-    }
-    let slope = S::ONE.div(width)?;
-    // At the anchor itself the anchor moves with the point: no slope.
-    Ok((
-        w,
-        match d {
-            d if d > S::ZERO => S::ZERO.sub(slope)?,
-            d if d < S::ZERO => slope,
-            _ => S::ZERO,
-        },
-    ))
 }
 
 /// Slope of `f` across `[lo, hi]` (a chord between grid lines).
@@ -458,81 +453,80 @@ impl SucroseCorrectionTable {
         Ok((c, per_t, per_b))
     }
 
-    /// Where to join the model to the table for a point `(t, b)` the table
-    /// has no cell for. Along temperature, with the content clamped to the
-    /// columns (`ba`): the nearest rows below and above `t` that have the
-    /// cells at `ba`. Along the content at `t`: the last column the rows
-    /// around `t` reach, where `b` lies beyond it (a ragged row's end).
-    fn anchors<S: Scalar>(&self, t: S, b: S) -> Result<Option<Anchors<S>>, Error> {
-        let (Some(&first), Some(&last)) = (self.brix.first(), self.brix.last()) else {
+    /// The table's value at a node of the offset lattice (`t` °C, `b`
+    /// %Brix, both whole), as [`SucroseCorrectionTable::correction`] reads
+    /// it there (a neighbour of zero weight is not read), or `None` where
+    /// it has no value: integer weights and one rounding at the end.
+    fn node<S: Scalar>(&self, t: i32, b: i32) -> Result<Option<S>, Error> {
+        let (Some((r, dt_from, dt)), Some((c, db_from, db))) =
+            (place(self.temperatures_c, t), place(self.brix, b))
+        else {
             return Ok(None);
         };
-        let ba = b.max(S::from_i32(first)?).min(S::from_i32(last)?);
-        let Some((c, f)) = bracket(self.brix, ba)? else {
-            return Ok(None);
+        let cell = |row: usize, col: usize| {
+            self.corrections
+                .get(row)
+                .and_then(|r| r.get(col))
+                .map(|&v| i64::from(v))
         };
-        // The last column index the interpolation at `ba` reads.
-        let needed = if f == S::ZERO { c } else { c + 1 };
-        let (mut below, mut above): (Option<S>, Option<S>) = (None, None);
-        if self.correction(t, ba).is_ok() {
-            (below, above) = (Some(t), Some(t));
-        } else {
-            for (row, &temp) in self.corrections.iter().zip(self.temperatures_c) {
-                if row.len() <= needed {
+        // Weights (dt − from, from) along each axis; a zero weight's cell
+        // is not read. Real tables (steps of a few °C and %Brix) stay far
+        // inside i32; a table whose steps would not is an overflow.
+        let overflow = Error::Overflow;
+        let mut num = 0i64;
+        for (row, wr) in [(r, dt - dt_from), (r + 1, dt_from)] {
+            for (col, wc) in [(c, db - db_from), (c + 1, db_from)] {
+                if wr == 0 || wc == 0 {
                     continue;
                 }
-                let tr = S::from_i32(temp)?;
-                if tr <= t && below.is_none_or(|x| tr > x) {
-                    below = Some(tr);
-                }
-                if tr >= t && above.is_none_or(|x| tr < x) {
-                    above = Some(tr);
-                }
+                let Some(v) = cell(row, col) else {
+                    return Ok(None);
+                };
+                num = wr
+                    .checked_mul(wc)
+                    .and_then(|w| w.checked_mul(v))
+                    .and_then(|x| num.checked_add(x))
+                    .ok_or(overflow)?;
             }
         }
-        // The columns both rows around `t` reach.
-        let top = match bracket(self.temperatures_c, t)? {
-            Some((r, fr)) => {
-                let len = |k: usize| self.corrections.get(k).map_or(0, |row| row.len());
-                let reach = if fr == S::ZERO {
-                    len(r)
-                } else {
-                    len(r).min(len(r + 1))
-                };
-                match reach.checked_sub(1).and_then(|k| self.brix.get(k)) {
-                    Some(&top) if b > S::from_i32(top)? => Some(S::from_i32(top)?),
-                    _ => None,
-                }
-            }
-            None => None,
-        };
-        Ok(Some(Anchors {
-            ba,
-            below,
-            above,
-            top,
-        }))
+        let den = dt
+            .checked_mul(db)
+            .and_then(|d| d.checked_mul(100))
+            .ok_or(overflow)?;
+        match (i32::try_from(num), i32::try_from(den)) {
+            (Ok(n), Ok(d)) => S::from_ratio(n, d).map(Some),
+            _ => Err(overflow),
+        }
     }
 }
 
-/// See [`SucroseCorrectionTable::anchors`].
-struct Anchors<S> {
-    ba: S,
-    below: Option<S>,
-    above: Option<S>,
-    top: Option<S>,
+/// Where a whole `v` lies on an integer axis, as [`bracket`] places it: the
+/// first `i` with `axis[i] ≤ v ≤ axis[i+1]`, `v − axis[i]` and the step (in
+/// 64 bits: any two `i32` entries).
+fn place(axis: &[i32], v: i32) -> Option<(usize, i64, i64)> {
+    axis.windows(2).enumerate().find_map(|(i, w)| match *w {
+        [a, b] if a <= v && v <= b && b > a => {
+            Some((i, i64::from(v) - i64::from(a), i64::from(b) - i64::from(a)))
+        }
+        _ => None,
+    })
 }
 
-/// A join of the model to the table: the table-minus-model offset there, its
-/// slopes where the anchor moves with the point, and the weight it is given.
-struct Join<S> {
-    offset: S,
-    offset_t: S,
-    offset_b: S,
-    w_t: S,
-    dw_t: S,
-    w_b: S,
-    dw_b: S,
+/// Value and slopes (per K, per %Brix) of the bilinear reading of lattice
+/// corners `[(t0, b0), (t0 + 1, b0), (t0, b0 + 5), (t0 + 1, b0 + 5)]` at
+/// fractions `ft`, `fb` of the cell.
+fn bilinear<S: Scalar>(x: [S; 4], ft: S, fb: S) -> Result<(S, S, S), Error> {
+    let [x00, x10, x01, x11] = x;
+    let (rise0, rise1) = (x01.sub(x00)?, x11.sub(x10)?);
+    let lo = x00.add(rise0.mul(fb)?)?;
+    let hi = x10.add(rise1.mul(fb)?)?;
+    let across = hi.sub(lo)?;
+    let per_b = rise0.add(rise1.sub(rise0)?.mul(ft)?)?;
+    Ok((
+        lo.add(across.mul(ft)?)?,
+        across,
+        per_b.div(S::from_i32(LATTICE_BRIX)?)?,
+    ))
 }
 
 impl SucroseCompensation {
@@ -601,133 +595,153 @@ impl SucroseCompensation {
             });
         }
         let m = model_correction(temperature_c, brix)?;
-        let mut out = SucroseCorrection {
-            correction: m.correction,
-            per_kelvin: m.per_kelvin,
-            per_brix: m.per_brix,
+        let (correction, per_kelvin, per_brix) = self.joined(temperature_c, brix, &m)?;
+        Ok(SucroseCorrection {
+            correction,
+            per_kelvin,
+            per_brix,
             uncertainty: m.uncertainty,
             basis: CompensationBasis::Model,
-        };
-        let Some(anchors) = self.table.anchors(temperature_c, brix)? else {
-            return Ok(out);
-        };
-        let (value, per_t, per_b) = self.join(temperature_c, brix, &anchors)?;
-        out.correction = out.correction.add(value)?;
-        out.per_kelvin = out.per_kelvin.add(per_t)?;
-        out.per_brix = out.per_brix.add(per_b)?;
-        Ok(out)
+        })
     }
 
-    /// Table minus model at a table point, with the two slopes; `None` where
-    /// either is missing (a row outside the model's 5–40 °C).
-    fn offset_at<S: Scalar>(&self, t: S, b: S) -> Result<Option<(S, S, S)>, Error> {
-        let (Ok((tab, tab_t, tab_b)), Ok(m)) =
-            (self.table.with_slopes(t, b), model_correction(t, b))
-        else {
-            return Ok(None);
-        };
-        Ok(Some((
-            tab.sub(m.correction)?,
-            tab_t.sub(m.per_kelvin)?,
-            tab_b.sub(m.per_brix)?,
-        )))
-    }
-
-    /// The joins' weighted offset with its slopes in T and B: along
-    /// temperature (interpolated between the rows below and above, or fading
-    /// from the one there is) and along the content from a ragged row's end.
-    fn join<S: Scalar>(&self, t: S, b: S, a: &Anchors<S>) -> Result<(S, S, S), Error> {
-        let fade_c = lit!(S, JOIN_FADE_C);
-        let fade_b = lit!(S, JOIN_FADE_BRIX);
-        let (w_b, dw_b) = fade(b.sub(a.ba)?, fade_b)?;
-        // The offset follows the content only where `ba` is `b` itself.
-        let follows = a.ba == b;
-        let mut along_t: Option<Join<S>> = None;
-        let lo = match a.below {
-            Some(x) => self.offset_at(x, a.ba)?.map(|o| (x, o)),
-            None => None,
-        };
-        let hi = match a.above {
-            Some(x) => self.offset_at(x, a.ba)?.map(|o| (x, o)),
-            None => None,
-        };
-        match (lo, hi) {
-            (Some((x0, o0)), Some((x1, o1))) => {
-                let (offset, offset_t, offset_b) = if x1 > x0 {
-                    let f = t.sub(x0)?.div(x1.sub(x0)?)?;
-                    let rise = o1.0.sub(o0.0)?;
-                    let ob = o0.2.add(o1.2.sub(o0.2)?.mul(f)?)?;
-                    (o0.0.add(rise.mul(f)?)?, rise.div(x1.sub(x0)?)?, ob)
-                } else {
-                    o0
-                };
-                along_t = Some(Join {
-                    offset,
-                    offset_t,
-                    offset_b: if follows { offset_b } else { S::ZERO },
-                    w_t: S::ONE,
-                    dw_t: S::ZERO,
-                    w_b,
-                    dw_b,
-                });
-            }
-            (Some((x, o)), None) | (None, Some((x, o))) => {
-                let (w_t, dw_t) = fade(t.sub(x)?, fade_c)?;
-                along_t = Some(Join {
-                    offset: o.0,
-                    offset_t: S::ZERO,
-                    offset_b: if follows { o.2 } else { S::ZERO },
-                    w_t,
-                    dw_t,
-                    w_b,
-                    dw_b,
-                });
-            }
-            (None, None) => {}
+    /// %Brix read at `b` on the lattice's axis, and its rate in `b` (0 or 1):
+    /// a table whose first column is 0 %Brix reads the band below water as
+    /// that column, so the band is one lattice point (0) and the axis goes
+    /// on below it shifted by the band's width.
+    fn lattice_brix<S: Scalar>(&self, b: S) -> Result<(S, S), Error> {
+        if self.table.brix.first() != Some(&0) || b > S::ZERO {
+            return Ok((b, S::ONE));
         }
-        let along_b = match a.top {
-            Some(top) => match self.offset_at(t, top)? {
-                Some(o) => {
-                    let (w, dw) = fade(b.sub(top)?, fade_b)?;
-                    Some(Join {
-                        offset: o.0,
-                        offset_t: o.1,
-                        offset_b: S::ZERO,
-                        w_t: S::ONE,
-                        dw_t: S::ZERO,
-                        w_b: w,
-                        dw_b: dw,
-                    })
-                }
-                None => None,
-            },
-            None => None,
+        let band = lit!(S, super::scales::BELOW_WATER_BAND_BRIX);
+        let below = b.add(band)?;
+        Ok(if below < S::ZERO {
+            (below, S::ONE)
+        } else {
+            (S::ZERO, S::ZERO)
+        })
+    }
+
+    /// The model's correction at a lattice node (`b` on the lattice's axis,
+    /// see [`Self::lattice_brix`]), the fit read just outside its range
+    /// where the lattice frames it.
+    fn node_model<S: Scalar>(&self, t: i32, b: i32) -> Result<S, Error> {
+        let mut brix = S::from_i32(b)?;
+        if b < 0 && self.table.brix.first() == Some(&0) {
+            brix = brix.sub(lit!(S, super::scales::BELOW_WATER_BAND_BRIX))?;
+        }
+        Ok(polynomial(S::from_i32(t)?, brix)?.correction)
+    }
+
+    /// The table-minus-model offset at a lattice node and whether the table
+    /// has a value there. Off the table the offset is the nearest table
+    /// nodes' (same column, up to [`JOIN_FADE_C`] − 1 rows away, the mean of
+    /// two equally near) times `1 − rows/JOIN_FADE_C`: it depends only on
+    /// the distance to the table's nodes, and is zero one column beyond
+    /// them.
+    fn node_offset<S: Scalar>(&self, t: i32, b: i32) -> Result<(S, bool), Error> {
+        let offset = |t: i32| -> Result<Option<S>, Error> {
+            match self.table.node::<S>(t, b)? {
+                Some(v) => Ok(Some(v.sub(self.node_model(t, b)?)?)),
+                None => Ok(None),
+            }
         };
-        // Each join's weighted offset and its slopes.
-        let terms = |j: &Option<Join<S>>| -> Result<(S, S, S), Error> {
-            let Some(j) = j else {
-                return Ok((S::ZERO, S::ZERO, S::ZERO));
+        if let Some(o) = offset(t)? {
+            return Ok((o, true));
+        }
+        for k in 1..FADE_ROWS {
+            let found = match (offset(t - k)?, offset(t + k)?) {
+                (Some(a), Some(z)) => a.add(z)?.mul(S::HALF)?,
+                (Some(o), None) | (None, Some(o)) => o,
+                (None, None) => continue,
             };
-            let w = j.w_t.mul(j.w_b)?;
-            Ok((
-                w.mul(j.offset)?,
-                j.dw_t.mul(j.w_b)?.mul(j.offset)?.add(w.mul(j.offset_t)?)?,
-                j.w_t.mul(j.dw_b)?.mul(j.offset)?.add(w.mul(j.offset_b)?)?,
-            ))
+            let w = S::from_ratio(FADE_ROWS - k, FADE_ROWS)?;
+            return Ok((found.mul(w)?, false));
+        }
+        Ok((S::ZERO, false))
+    }
+
+    /// Off the table's cells: the model plus a table-minus-model offset
+    /// that is continuous everywhere, with its two slopes.
+    ///
+    /// The offset lives on a lattice of whole degrees × 5 %Brix (the tables'
+    /// rows and columns fall on it): at a node where the table has a value,
+    /// `o = table − model`; elsewhere the fade of [`Self::node_offset`].
+    /// Between nodes, with `X̂` the bilinear reading of nodal values `X`,
+    /// `g` the nodal indicator "off the table" (0 on the table's nodes, 1
+    /// elsewhere) and `m` the model:
+    ///
+    /// `c = m + ô − (1 − ĝ)·(m − m̂)`.
+    ///
+    /// Every term is continuous (nodal values read bilinearly, the model),
+    /// so `c` is. On a lattice cell or edge whose nodes are all the table's
+    /// `ĝ = 0` and `c = ô + m̂ = (table)^`, the table's own bilinear reading:
+    /// so `c` meets the table at its edges. Where no node of the cell is
+    /// the table's, `ĝ = 1` and `c = m + ô`: the model and the faded offset.
+    fn joined<S: Scalar>(&self, t: S, b: S, m: &ModelTerms<S>) -> Result<(S, S, S), Error> {
+        let model = (m.correction, m.per_kelvin, m.per_brix);
+        let (Some(&t_first), Some(&t_last), Some(&b_first), Some(&b_last)) = (
+            self.table.temperatures_c.first(),
+            self.table.temperatures_c.last(),
+            self.table.brix.first(),
+            self.table.brix.last(),
+        ) else {
+            return Ok(model);
         };
-        // The ragged row's end (at `t` itself) first, the rows along
-        // temperature for the rest of the weight: `wB·oB + (1 − wB)·T`.
-        let (tv, tt, tb) = terms(&along_t)?;
-        let Some(jb) = along_b else {
-            return Ok((tv, tt, tb));
-        };
-        let (w_b, dw_b) = (jb.w_b, jb.dw_b);
-        let (bv, bt, bb) = terms(&Some(jb))?;
-        let rest = S::ONE.sub(w_b)?;
+        let (lb, rate) = self.lattice_brix(b)?;
+        let (t0, ft) = split_floor(t)?;
+        let (k0, fb) = split_floor(lb.div(S::from_i32(LATTICE_BRIX)?)?)?;
+        let b0 = k0.saturating_mul(LATTICE_BRIX);
+        // No table node within the fade: the model alone.
+        let reach = FADE_ROWS - 1;
+        if t0.saturating_add(1) < t_first.saturating_sub(reach)
+            || t0 > t_last.saturating_add(reach)
+            || b0.saturating_add(LATTICE_BRIX) < b_first
+            || b0 > b_last
+        {
+            return Ok(model);
+        }
+        let corners = [
+            (t0, b0),
+            (t0 + 1, b0),
+            (t0, b0 + LATTICE_BRIX),
+            (t0 + 1, b0 + LATTICE_BRIX),
+        ];
+        let mut offsets = [S::ZERO; 4];
+        let mut off_table = [S::ONE; 4];
+        let mut on_table = false;
+        for (k, &(tn, bn)) in corners.iter().enumerate() {
+            let (o, table) = self.node_offset::<S>(tn, bn)?;
+            offsets[k] = o;
+            if table {
+                off_table[k] = S::ZERO;
+                on_table = true;
+            }
+        }
+        let (o, o_t, o_b) = bilinear(offsets, ft, fb)?;
+        let (c, c_t, c_b) = (
+            m.correction.add(o)?,
+            m.per_kelvin.add(o_t)?,
+            m.per_brix.add(o_b.mul(rate)?)?,
+        );
+        if !on_table {
+            return Ok((c, c_t, c_b));
+        }
+        // Next to the table: − (1 − ĝ)·(m − m̂) and its slopes.
+        let mut nodal = [S::ZERO; 4];
+        for (slot, &(tn, bn)) in nodal.iter_mut().zip(corners.iter()) {
+            *slot = self.node_model(tn, bn)?;
+        }
+        let (mh, mh_t, mh_b) = bilinear(nodal, ft, fb)?;
+        let (g, g_t, g_b) = bilinear(off_table, ft, fb)?;
+        let on = S::ONE.sub(g)?;
+        let dev = m.correction.sub(mh)?;
+        let dev_t = m.per_kelvin.sub(mh_t)?;
+        let dev_b = m.per_brix.sub(mh_b.mul(rate)?)?;
         Ok((
-            bv.add(rest.mul(tv)?)?,
-            bt.add(rest.mul(tt)?)?,
-            bb.add(rest.mul(tb)?)?.sub(dw_b.mul(tv)?)?,
+            c.sub(on.mul(dev)?)?,
+            c_t.add(g_t.mul(dev)?)?.sub(on.mul(dev_t)?)?,
+            c_b.add(g_b.mul(rate)?.mul(dev)?)?.sub(on.mul(dev_b)?)?,
         ))
     }
 

@@ -11,14 +11,16 @@
 //!
 //! Why this grid: the published tables (OIV Table I, the juice table) have
 //! rows at whole degrees and columns at multiples of 5 %Brix and are read
-//! bilinearly, and the join of the model to a table fades linearly over 5 K
-//! and 5 %Brix from a table's edge. All of that is linear between grid
-//! points, so the interpolation reproduces it: on a table cell the reading is
-//! the one [`SucroseCompensation`] gives. Only the model itself (a cubic in
-//! temperature and in %Brix) is curved between grid points;
+//! bilinearly, and off a table's cells the compensation's table-minus-model
+//! offset lives on a lattice of the same nodes and is read bilinearly. All
+//! of that is linear between grid points, so the interpolation reproduces
+//! it: on a table cell the reading is the one [`SucroseCompensation`] gives.
+//! Only the model (a cubic in temperature and in %Brix, and its curvature
+//! term next to a table) is curved between grid points;
 //! `tests/sucrose_rows.rs` measures the difference over the whole range.
 //!
-//! Cost of a new degree: 40 corrections through [`SucroseCompensation`].
+//! Cost of a new degree: 78 corrections through [`SucroseCompensation`]
+//! (per row, its 20 grid points and 19 segment middles).
 //! State: 2 × 20 values.
 
 use super::compensation::SucroseCompensation;
@@ -54,8 +56,8 @@ const ROW_LIMIT: f64 = 4.0;
 const SEGMENTS: usize = ROW_NODES - 1;
 
 /// The correction along the grid at one temperature: per segment, its
-/// values at the segment's two grid points as the segment itself continues
-/// to them (the correction may step at a table's edge on a grid point).
+/// values at the segment's two grid points (the correction changes its
+/// form, without a step, at a table's edge on a grid point).
 #[derive(Clone, Copy, Debug, PartialEq)]
 struct Row<S> {
     /// %Brix to add at each segment's lower and upper grid point, and twice
@@ -143,30 +145,41 @@ impl<S: Scalar> SucroseRows<S> {
         &self.exact
     }
 
-    /// The correction along the grid at `t`. Each segment is read a hair
-    /// (2^-6 %Brix) inside its grid points and at its middle (inside the
-    /// apparent %Brix range at the two end segments), and the parabola
-    /// through the three readings gives its values at the grid points and
-    /// the middle.
+    /// The correction along the grid at `t`. Each segment is read at its
+    /// grid points and its middle (inside the apparent %Brix range at the
+    /// two end segments), and the parabola through the three readings gives
+    /// its values at the grid points and the middle. The correction has no
+    /// step on a grid point (where a table ends), so neighbouring segments
+    /// meet there.
     fn row_at(exact: &SucroseCompensation, t: S, row: &mut Row<S>) -> Result<(), Error> {
         *row = Row::EMPTY;
-        let hair = S::from_ratio_pow2(1, 6)?;
         let step = S::from_i32(ROW_STEP_BRIX)?;
         let (lowest, highest) = (lit!(S, APPARENT_BRIX_MIN), lit!(S, APPARENT_BRIX_MAX));
-        for (k, slot) in row.ends.iter_mut().enumerate() {
-            let from = S::from_i32(FIRST_NODE + ROW_STEP_BRIX * k as i32)?;
+        // Grid point `i`, the two ends taken inside the apparent range; each
+        // is read once and shared by the two segments that meet there.
+        let point = |i: i32| -> Result<S, Error> {
+            Ok(S::from_i32(FIRST_NODE + ROW_STEP_BRIX * i)?
+                .max(lowest)
+                .min(highest))
+        };
+        let mut a = point(0)?;
+        let mut at_a = exact.correction(t, a);
+        for (k, slot) in (0i32..).zip(row.ends.iter_mut()) {
+            let from = S::from_i32(FIRST_NODE + ROW_STEP_BRIX * k)?;
             let to = from.add(step)?;
-            let a = from.add(hair)?.max(lowest);
-            let b = to.sub(hair)?.min(highest);
+            let b = point(k + 1)?;
+            let at_b = exact.correction(t, b);
             let m = a.add(b.sub(a)?.mul(S::HALF)?)?;
-            let (Ok(ca), Ok(cm), Ok(cb)) = (
-                exact.correction(t, a),
-                exact.correction(t, m),
-                exact.correction(t, b),
-            ) else {
+            let (start, readings) = (a, (at_a, exact.correction(t, m), at_b));
+            (a, at_a) = (b, at_b);
+            let (Ok(ca), Ok(cm), Ok(cb)) = readings else {
                 continue;
             };
-            let through = [(a, ca.correction), (m, cm.correction), (b, cb.correction)];
+            let through = [
+                (start, ca.correction),
+                (m, cm.correction),
+                (b, cb.correction),
+            ];
             let at_from = parabola(&through, from)?;
             let at_to = parabola(&through, to)?;
             // Halves of differences: sums of two %Brix overflow I8F24 (above 128).
@@ -199,12 +212,14 @@ impl<S: Scalar> SucroseRows<S> {
     ///
     /// The published tables end at whole degrees, and where a table ends
     /// (its first and last rows, a ragged row's end) the correction
-    /// [`SucroseCompensation`] gives changes its form there, with a step up
-    /// to about 0.1 %Brix next to a ragged row's end. So each row is taken a
-    /// hair (2^-8 K) inside the interval and carried back to the whole degree
-    /// along the line through both: between two whole degrees the readings
-    /// follow the correction's own form there, and on a bilinear table cell
-    /// the line is the table's own (exact).
+    /// [`SucroseCompensation`] gives changes its form there (a kink: it has
+    /// no step). Each row is taken a hair (2^-8 K) inside the interval and
+    /// carried back to the whole degree along the line through both: between
+    /// two whole degrees the readings follow the correction's own form
+    /// there, and on a bilinear table cell the line is the table's own
+    /// (exact). The correction has no step at whole degrees, so rows taken
+    /// on the whole degrees themselves would meet too; the hair keeps each
+    /// interval's own form (its slope) across it.
     fn prepare(&mut self, lo: i32, hi: i32) -> Result<(), Error> {
         self.span = None;
         let hair = S::from_ratio_pow2(1, 8)?;

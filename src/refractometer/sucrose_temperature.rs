@@ -128,8 +128,17 @@ pub fn model_correction<S: Scalar>(temperature_c: S, brix: S) -> Result<ModelTer
         lit!(S, MODEL_MIN_BRIX),
         lit!(S, MODEL_MAX_BRIX),
     )?;
-    // x in [−0.775, 1.025], y in [−0.025, 0.87]: every product below stays under
-    // 10 in magnitude, inside I8F24.
+    polynomial(t, b)
+}
+
+/// The fit itself at `t` °C and `b` %Brix, without the range check: the
+/// compensation's join reads it at the whole degrees and 5 %Brix steps just
+/// outside the range (4 and 41 °C, −5 and 90 %Brix) that frame it. Checked
+/// arithmetic throughout.
+pub(crate) fn polynomial<S: Scalar>(t: S, b: S) -> Result<ModelTerms<S>, Error> {
+    // In the range, x in [−0.775, 1.025], y in [−0.025, 0.87] (at the
+    // frame's nodes, x down to −0.8 and y in [−0.05, 0.9]): every product
+    // below stays under 10 in magnitude, inside I8F24.
     let dt = t.sub(lit!(S, 20.0))?;
     let x = dt.mul(lit!(S, 0.05))?;
     let y = b.mul(lit!(S, 0.01))?;

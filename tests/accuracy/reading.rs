@@ -18,7 +18,7 @@ use embedded_optics::refractometer::prepare::{self, Prepared};
 use embedded_optics::refractometer::reading::brix_cells::{apparent_of_nd, nd_of_apparent};
 use embedded_optics::refractometer::scales::{SucroseBrix, apparent_brix};
 use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
-use embedded_optics::{Error, Quantity, Scalar};
+use embedded_optics::{Error, Quantity};
 use std::sync::OnceLock;
 
 const GEOMETRY: GeometryDescription = GeometryDescription {
