@@ -1,12 +1,12 @@
 //! The bridge from the model side to the reading side: the exact models
-//! turned into the data a firmware links ([`reading::prepared`]), on the host.
+//! turned into the data a firmware links ([`reading::prepared`](super::reading::prepared)), on the host.
 //!
 //! A firmware's `build.rs` calls [`prepare`] with its design (geometry,
 //! prism, LED, thermistor divider) and writes [`Prepared::to_rust`] into
 //! `OUT_DIR`; the firmware `include!`s it. Nothing is worked out on the
 //! device, and nothing generated is kept in the source tree, so the data
 //! cannot fall out of date. The sucrose grids the crate ships
-//! ([`reading::tables`]) are made by [`correction_grid`];
+//! ([`reading::tables`](super::reading::tables)) are made by [`correction_grid`];
 //! `tests/reading_side.rs` makes them again and compares.
 //!
 //! Everything here runs in `f64` with the checked models: it is build-time

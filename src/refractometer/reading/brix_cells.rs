@@ -2,7 +2,7 @@
 //! out at compile time: what a reading needs from the %Brix scale without
 //! reading the table's entries, dividing or searching at run time.
 //!
-//! [`SucroseBrix`](super::scales::SucroseBrix) reads the table by four-point
+//! [`SucroseBrix`](crate::refractometer::scales::SucroseBrix) reads the table by four-point
 //! interpolation; in each 5 %Brix cell that is one cubic. Here each cell's
 //! cubic is expanded from the cell's lower entry, `n = y_k + s·(q1 + s·(q2 +
 //! s·q3))` with `s` the place in the cell (0..1), and its inverse is a cubic

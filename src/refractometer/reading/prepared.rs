@@ -159,7 +159,7 @@ impl TemperatureLine<'_> {
 /// A thermistor divider's temperature by ADC code: entries every
 /// `2^step_log2` codes, read along straight lines. Made on the host from the
 /// divider and the thermistor's exact model
-/// ([`prepare::code_table`](crate::refractometer::prepare::code_table)).
+/// ([`prepare::prepare`](crate::refractometer::prepare::prepare)).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct CodeTable<'a> {

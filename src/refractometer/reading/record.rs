@@ -188,7 +188,7 @@ fn to_coefficient<S: Scalar>(x: S) -> Result<I32F32, Error> {
 
 impl CalibrationRecord {
     /// The same record holding `correction` (the instrument's, see
-    /// [`Instrument::calibration_record`](super::instrument::Instrument::calibration_record)).
+    /// [`Instrument::calibration_record`](crate::refractometer::instrument::Instrument::calibration_record)).
     /// A coefficient beyond I32F32's range is [`Error::Overflow`].
     pub fn with_correction<S: Scalar>(self, correction: &Correction<S>) -> Result<Self, Error> {
         Ok(Self {

@@ -283,7 +283,7 @@ impl<M: SlotMemory> CalibrationStore<M> {
     }
 
     /// The slot in use and where the next commit goes, as
-    /// [`Instrument::calibration_record`](super::instrument::Instrument::calibration_record)
+    /// [`Instrument::calibration_record`](crate::refractometer::instrument::Instrument::calibration_record)
     /// takes it.
     pub fn choice(&self) -> SlotChoice {
         self.choice
