@@ -17,7 +17,7 @@
 //! [`Quantity::ScaleValue`] for a sugar content outside the table): a firmware
 //! shows the reading as uncompensated, it never gets an extrapolated one.
 
-use super::scales::{SucroseBrix, apparent_brix, sucrose_cell_slope, sucrose_slope};
+use super::scales::{SucroseBrix, apparent_brix, sucrose_slope};
 use super::sucrose_temperature::{ModelTerms, model_correction, polynomial};
 use super::table::{Raw, div_round};
 use super::{
@@ -800,7 +800,7 @@ impl<S: Scalar> SampleCompensation<S> for SucroseCompensation {
         let (brix_read, c) = self.read(nd, temperature_c)?;
         let brix20 = brix_read.add(c.correction)?;
         let nd20 = SucroseBrix.nd20_at(brix20)?;
-        let slope = sucrose_cell_slope(brix20)?;
+        let slope = sucrose_slope(brix20)?;
         let uncertainty = if c.uncertainty == S::ZERO {
             S::ZERO
         } else {

@@ -29,7 +29,7 @@
 //! assert!((brix.to_num::<f64>() - 10.0).abs() < 0.005);
 //! ```
 
-use super::reading::brix_cells::ICUMSA_SUCROSE_ND;
+use super::reading::brix_cells::{ICUMSA_SUCROSE_ND, end_parabola};
 use super::table::{LinearTable, UniformCubicTable};
 use super::{SampleDomain, TradeScale};
 use crate::error::{Error, Quantity};
@@ -83,11 +83,7 @@ const WATER_ND: f64 = 1.33299;
 /// dnD/d%Brix of the table's cubic at 0 %Brix (the four-point Lagrange
 /// derivative through the first four entries), used on the band below water:
 /// `(−11·y0 + 18·y1 − 9·y2 + 2·y3) / (6·step)`.
-const SLOPE_AT_WATER: f64 = {
-    let y = ICUMSA_SUCROSE.ys;
-    (-11.0 * y[0] as f64 + 18.0 * y[1] as f64 - 9.0 * y[2] as f64 + 2.0 * y[3] as f64)
-        / (6.0 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
-};
+const SLOPE_AT_WATER: f64 = end_parabola(false).1;
 
 /// The band below water in %Brix: the lowest value [`SucroseBrix`] reports,
 /// negated (about 0.14 %Brix).
@@ -95,11 +91,7 @@ pub const BELOW_WATER_BAND_BRIX: f64 = BELOW_WATER_BAND / SLOPE_AT_WATER;
 
 /// Second derivative d²nD/d%Brix² of the table's cubic at 0 %Brix (the first
 /// four entries): `(2·y0 − 5·y1 + 4·y2 − y3) / step²`.
-const CURVATURE_AT_WATER: f64 = {
-    let y = ICUMSA_SUCROSE.ys;
-    (2.0 * y[0] as f64 - 5.0 * y[1] as f64 + 4.0 * y[2] as f64 - y[3] as f64)
-        / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
-};
+const CURVATURE_AT_WATER: f64 = end_parabola(false).2;
 
 /// nD of the table's last entry (85 %Brix).
 const TOP_ND: f64 = {
@@ -113,19 +105,8 @@ const TOP_BRIX: f64 =
 
 /// dnD/d%Brix and d²nD/d%Brix² of the table's cubic at its last entry (the
 /// last four entries).
-const SLOPE_AT_TOP: f64 = {
-    let y = ICUMSA_SUCROSE.ys;
-    let n = y.len();
-    (11.0 * y[n - 1] as f64 - 18.0 * y[n - 2] as f64 + 9.0 * y[n - 3] as f64
-        - 2.0 * y[n - 4] as f64)
-        / (6.0 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
-};
-const CURVATURE_AT_TOP: f64 = {
-    let y = ICUMSA_SUCROSE.ys;
-    let n = y.len();
-    (2.0 * y[n - 1] as f64 - 5.0 * y[n - 2] as f64 + 4.0 * y[n - 3] as f64 - y[n - 4] as f64)
-        / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
-};
+const SLOPE_AT_TOP: f64 = end_parabola(true).1;
+const CURVATURE_AT_TOP: f64 = end_parabola(true).2;
 
 /// How far below 0 %Brix [`apparent_brix`] reads: water at 40 °C reads about
 /// −1.7 %Brix on the 20 °C scale, and a noisy zero a little further.
@@ -196,29 +177,20 @@ pub fn apparent_brix<S: Scalar>(nd: S) -> Result<S, Error> {
     )
 }
 
-/// dnD/d%Brix of the sucrose scale at `brix` (0–85 %Brix; the end slopes
-/// beyond), from a 0.5 %Brix chord: turns a %Brix uncertainty into nD.
+/// dnD/d%Brix of the sucrose scale at `brix` (−2.5 to 87 %Brix): the
+/// tangent of the ICUMSA cell's cubic, and beyond the table's ends of its end
+/// parabola ([`nd_of_apparent`](super::reading::brix_cells::nd_of_apparent)):
+/// turns a %Brix uncertainty into nD. The one sucrose slope of the crate:
+/// the compensation, its uncertainty and the reading side all take it.
 pub fn sucrose_slope<S: Scalar>(brix: S) -> Result<S, Error> {
     let b = brix.check_range(
         Quantity::ScaleValue,
         lit!(S, APPARENT_BRIX_MIN),
         lit!(S, APPARENT_BRIX_MAX),
     )?;
-    if b <= S::ZERO {
-        return Ok(lit!(S, SLOPE_AT_WATER));
-    }
-    let top = lit!(S, TOP_BRIX);
-    if b >= top {
-        return Ok(lit!(S, SLOPE_AT_TOP));
-    }
-    let h = lit!(S, 0.5);
-    let (lo, hi) = if b.add(h)? <= top {
-        (b, b.add(h)?)
-    } else {
-        (b.sub(h)?, b)
-    };
-    let rise = SucroseBrix.nd20_at(hi)?.sub(SucroseBrix.nd20_at(lo)?)?;
-    rise.div(h)
+    super::reading::brix_cells::nd_of_apparent(b)
+        .map(|(_, slope)| slope)
+        .ok_or(Error::OutOfRange(Quantity::ScaleValue))
 }
 
 impl<S: Scalar> TradeScale<S> for SucroseBrix {
@@ -263,24 +235,6 @@ impl<S: Scalar> TradeScale<S> for SucroseBrix {
             )),
         }
     }
-}
-
-/// dnD/d%Brix of the sucrose table near `brix`: the chord of its 5 %Brix cell
-/// (for sensitivities; within 2 % of the cubic's tangent, the slope changing
-/// by under 4 % across a cell). No division: the entries' difference over
-/// 2^10 times a constant.
-pub(crate) fn sucrose_cell_slope<S: Scalar>(brix: S) -> Result<S, Error> {
-    let cells = ICUMSA_SUCROSE.ys.len() - 1;
-    let k = usize::try_from(brix.round_to_i32()?.max(0) / ICUMSA_SUCROSE.step)
-        .unwrap_or(0)
-        .min(cells - 1);
-    let (Some(lo), Some(hi)) = (ICUMSA_SUCROSE.ys.get(k), ICUMSA_SUCROSE.ys.get(k + 1)) else {
-        return Err(Error::OutOfRange(Quantity::ScaleValue));
-    };
-    S::from_ratio_pow2(hi - lo, 10)?.mul(lit!(
-        S,
-        1024.0 / (ICUMSA_SUCROSE.step as f64 * ICUMSA_SUCROSE.y_den as f64)
-    ))
 }
 
 /// Salinity of seawater, ‰ (practical salinity, ≈ g/kg), 0–43 ‰.

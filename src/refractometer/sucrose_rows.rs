@@ -351,7 +351,7 @@ impl<S: Scalar> SampleCompensation<S> for SucroseRows<S> {
             Some(cell) => cell,
             None => (
                 SucroseBrix.nd20_at(brix20)?,
-                super::scales::sucrose_cell_slope(brix20)?,
+                super::scales::sucrose_slope(brix20)?,
             ),
         };
         let (basis, uncertainty) = if table {

@@ -254,8 +254,9 @@ fn inverse<S: Scalar, const CHORD: bool>(nd: S) -> Option<(S, S)> {
 /// Slope dnD/d%Brix and curvature d²nD/d%Brix² of the table's end cubics
 /// (four-point Lagrange derivatives), at 0 and at 85 %Brix: the parabolas a
 /// reading continues along beyond the table's ends (water read warm, a dense
-/// syrup read cold).
-const fn end_parabola(top: bool) -> (f64, f64, f64) {
+/// syrup read cold). Returns (nD at the end, slope, curvature); the scale's
+/// band below water and its reading beyond the ends take the same.
+pub(crate) const fn end_parabola(top: bool) -> (f64, f64, f64) {
     let y = ICUMSA_SUCROSE_ND;
     let d = ICUMSA_SUCROSE_DEN as f64;
     let n = ENTRIES;
