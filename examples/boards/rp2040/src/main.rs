@@ -1,5 +1,7 @@
 //! A handheld %Brix refractometer on an RP2040 (Cortex-M0+, no FPU) with
-//! embassy-rp, in I32F32 fixed point. Our fictional juice plant's hand unit:
+//! embassy-rp, on the crate's reading side (`BrixMeter`) in I8F24 fixed
+//! point, its design's data prepared at build time (`build.rs`). Our
+//! fictional juice plant's hand unit:
 //!
 //! - thermistor: 10 kΩ NTC (β 3950) to ground under a 10 kΩ resistor from the
 //!   ADC's reference, on GPIO26 (ADC0), read by the blocking ADC;
@@ -14,7 +16,8 @@
 //! - readings: logged with defmt (RTT), nD at 20 °C and %Brix.
 //!
 //! The optics (14 µm pixels, 30 mm lens, prism of nd 1.7174 / Vd 29.5, 590 nm
-//! LED) are the board images' invented design; put your own in `DESCRIPTION`.
+//! LED) and the thermistor are the board images' invented design; put your
+//! own in `build.rs`.
 #![no_std]
 #![no_main]
 
@@ -26,53 +29,41 @@ use embassy_rp::gpio::{Input, Level, Output, Pull};
 use embassy_rp::peripherals::{DMA_CH0, DMA_CH1, FLASH};
 use embassy_rp::spi::{self, Spi};
 use embassy_rp::{bind_interrupts, dma};
-use embedded_optics::media::IndexReference;
-use embedded_optics::media::glass::Glass;
-use embedded_optics::media::water::Water;
 use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
-use embedded_optics::refractometer::compensation::SucroseCompensation;
-use embedded_optics::refractometer::geometry::GeometryDescription;
-use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
+use embedded_optics::refractometer::reading::meter::{BrixMeter, MeterDesign};
+use embedded_optics::refractometer::reading::prepared::{CodeTable, PositionMap, TemperatureLine};
+use embedded_optics::refractometer::reading::tables::OIV_GRID;
 use embedded_optics::refractometer::record;
-use embedded_optics::refractometer::scales::SucroseBrix;
 use embedded_optics::refractometer::store::{CalibrationStore, NorFlashSlots};
-use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
-use embedded_optics::refractometer::wavelength::{WaterLikeAtLed, WaterLikeDispersion};
-use embedded_optics::{Error, lit};
-use fixed::types::I32F32;
+use fixed::types::I8F24;
 use {defmt_rtt as _, panic_probe as _};
 
-/// The number type of the whole chain: no FPU, so fixed point.
-type S = I32F32;
+/// The number type of the reading side: no FPU, so 32-bit fixed point.
+type S = I8F24;
 
 /// Pixels of the line sensor.
 const PIXELS: usize = 1024;
 
-/// The instrument's optics and read-out (see the module docs).
-const DESCRIPTION: InstrumentDescription = InstrumentDescription {
-    geometry: GeometryDescription {
-        pixel_pitch_um: 14.0,
-        focal_length_mm: 30.0,
-        axis_offset_px: 511.5,
-        apex_angle_deg: 56.25,
-        reversed: false,
-    },
-    boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
-    led_wavelength_nm: 590.0,
-    frames_per_reading: 4,
-    temperature_uncertainty_c: 0.2,
-    calibration_uncertainty: 1.0e-5,
-    settle_readings: 3,
-    settle_band_nd: 3.0e-5,
-    settle_band_c: 0.1,
-};
+// The design's data: `DESIGN_MAP`, `DESIGN_WATER`, `DESIGN_THERMISTOR`,
+// `DESIGN_DISPERSION_RATIO_Q30`, made by build.rs from the exact models.
+include!(concat!(env!("OUT_DIR"), "/design.rs"));
 
-/// The thermistor divider on ADC0 (12-bit codes).
-const DIVIDER: Divider = Divider {
-    placement: Placement::ThermistorLowSide,
-    reference_ohms: 10_000,
-    adc_bits: 12,
-    rail_margin_codes: 8,
+/// The meter: the prepared data, the OIV compensation grid, four frames a
+/// reading, the thermistor's 0.2 °C and the calibration's 1e-5.
+static METER: MeterDesign<'static> = MeterDesign {
+    boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
+    map: DESIGN_MAP,
+    water: DESIGN_WATER,
+    thermistor: DESIGN_THERMISTOR,
+    dispersion_ratio_q30: DESIGN_DISPERSION_RATIO_Q30,
+    compensation: OIV_GRID,
+    led_wavelength_pm: 590_000,
+    frames_log2: 2,
+    temperature_uncertainty_mc: 200,
+    calibration_uncertainty_e8: 1000,
+    settle_readings: 3,
+    settle_band_e8: 3000,
+    settle_band_mc: 100,
 };
 
 /// Flash size of the board (a Raspberry Pi Pico: 2 MiB).
@@ -83,18 +74,6 @@ const CALIBRATION_OFFSET: u32 = (FLASH_SIZE - 2 * flash::ERASE_SIZE) as u32;
 bind_interrupts!(struct Irqs {
     DMA_IRQ_0 => dma::InterruptHandler<DMA_CH0>, dma::InterruptHandler<DMA_CH1>;
 });
-
-type Refractometer = Instrument<S, Glass<S>, WaterLikeAtLed<S>, SucroseCompensation, SucroseBrix>;
-
-fn refractometer() -> Result<Refractometer, Error> {
-    Instrument::new(
-        &DESCRIPTION,
-        Glass::from_nd_vd(lit!(S, 1.7174), lit!(S, 29.5), lit!(S, 4.0))?,
-        WaterLikeDispersion::at_led(lit!(S, 0.590))?,
-        SucroseCompensation::oiv(),
-        SucroseBrix,
-    )
-}
 
 type BoardFlash<'d> = Flash<'d, FLASH, Blocking, FLASH_SIZE>;
 
@@ -127,11 +106,6 @@ async fn main(_spawner: Spawner) {
 
     let mut adc = Adc::new_blocking(p.ADC, adc::Config::default());
     let mut thermistor = Channel::new_pin(p.PIN_26, Pull::None);
-    let beta = Beta {
-        beta_k: 3950,
-        r0_ohms: 10_000,
-        t0_c: lit!(S, 25.0),
-    };
 
     let mut config = spi::Config::default();
     config.frequency = 8_000_000;
@@ -141,8 +115,8 @@ async fn main(_spawner: Spawner) {
     let mut select = Output::new(p.PIN_17, Level::High);
     let zero_button = Input::new(p.PIN_15, Pull::Up);
 
-    let Ok(mut meter) = refractometer() else {
-        defmt::error!("instrument description refused");
+    let Ok(mut meter) = BrixMeter::<S>::new(&METER) else {
+        defmt::error!("meter design refused");
         return;
     };
     let mut store: Option<Store<'_>> =
@@ -173,21 +147,14 @@ async fn main(_spawner: Spawner) {
             warn!("line sensor: {}", e);
             continue;
         }
-        let temperature = adc
-            .blocking_read(&mut thermistor)
-            .map_err(|_| Error::SensorOpen)
-            .and_then(|code| DIVIDER.temperature_c(&beta, u32::from(code)));
-        let temperature = match temperature {
-            Ok(t) => t,
-            Err(e) => {
-                warn!("thermistor: {}", e);
-                continue;
-            }
+        let Ok(code) = adc.blocking_read(&mut thermistor) else {
+            warn!("thermistor: ADC read failed");
+            continue;
         };
 
         if zeroing {
             // Average the configured frames, then zero against water at the LED.
-            match meter.feed(&frame, temperature) {
+            match meter.feed(&frame, code) {
                 Ok(None) => {}
                 Ok(Some(avg)) => {
                     zeroing = false;
@@ -195,11 +162,12 @@ async fn main(_spawner: Spawner) {
                         .as_ref()
                         .map_or(record::choose_slots(&[], &[]), |s| s.choice());
                     let stored = meter
-                        .zero_with_water(&avg, &Water::new(IndexReference::Air))
+                        .zero_with_water(&avg)
                         .and_then(|_| meter.calibration_record(&choice));
                     match (stored, store.as_mut()) {
                         (Ok(rec), Some(store)) => match store.commit(rec) {
                             Ok((slot, rec)) => {
+                                meter.set_record_sequence(rec.sequence);
                                 info!(
                                     "zero stored as calibration {} in slot {}",
                                     rec.sequence, slot
@@ -216,16 +184,22 @@ async fn main(_spawner: Spawner) {
             continue;
         }
 
-        match meter.measure(&frame, temperature) {
+        let reading = match meter.feed(&frame, code) {
+            Ok(Some(mean)) => meter.read(&mean).map(Some),
+            Ok(None) => Ok(None),
+            Err(e) => Err(e),
+        };
+        match reading {
             Ok(None) => {}
-            Ok(Some(r)) => match r.scale_value {
+            Ok(Some(r)) => match r.brix {
                 Ok(brix) => info!(
-                    "{} %Brix  nD20 {} ± {}  {} °C{}",
+                    "{} ± {} %Brix  nD20 {} ± {}  {} °C{}",
                     brix,
+                    r.u_brix,
                     r.nd20,
-                    r.uncertainty,
+                    r.u_nd20,
                     r.temperature_c,
-                    if r.stable { "" } else { "  (settling)" }
+                    if r.settled { "" } else { "  (settling)" }
                 ),
                 Err(e) => info!("nD20 {} (off the %Brix scale: {})", r.nd20, e),
             },
