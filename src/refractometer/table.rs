@@ -451,14 +451,14 @@ impl UniformCubicTable {
     }
 
     /// `y` at the first entry.
-    pub fn y_first<S: Scalar>(&self) -> Result<S, Error> {
+    pub(crate) fn y_first<S: Scalar>(&self) -> Result<S, Error> {
         S::from_ratio(self.y(0)?, self.y_den)
     }
 
     /// dy/dx of the cubic at the first entry: the four-point Lagrange
     /// derivative `(−11·y0 + 18·y1 − 9·y2 + 2·y3) / (6·step)`, what a scale
     /// continues on just below its table (the band below water).
-    pub fn slope_at_first<S: Scalar>(&self) -> Result<S, Error> {
+    pub(crate) fn slope_at_first<S: Scalar>(&self) -> Result<S, Error> {
         let y = |i: usize| -> Result<i64, Error> { Ok(i64::from(self.y(i)?)) };
         // Four i32 values times at most 18: below 2^37, no i64 overflow.
         let num = -11 * y(0)? + 18 * y(1)? - 9 * y(2)? + 2 * y(3)?;
