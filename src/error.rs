@@ -51,7 +51,8 @@ pub enum Quantity {
     Disparity,
     /// A confidence figure (0 to 1).
     Confidence,
-    /// A salinity (g/kg, practical salinity ‰).
+    /// A salinity (‰ as the seawater relation gives it; see
+    /// [`Salinity`](crate::refractometer::scales::Salinity)).
     Salinity,
     /// A density.
     Density,
@@ -167,36 +168,78 @@ pub enum Error {
     /// positions than the polynomial has coefficients (repeated positions),
     /// seen as a vanishing diagonal of the least-squares factor R.
     RankDeficient,
+    /// A step came before the one it rests on: a span, or anything else that
+    /// needs the water zero, before any zero was taken. Zero on distilled
+    /// water first.
+    NotZeroed,
+    /// A stored calibration was made for another unit: the named record
+    /// field (the LED wavelength, a geometry) differs from this instrument's.
+    /// The record is left alone; calibrate this unit and store its own.
+    RecordMismatch(&'static str),
+    /// A description the caller built (an instrument or meter design, a
+    /// driver layout, a sensor model, a table) has the named field outside
+    /// the values it may take. Correct the description; no input to a
+    /// reading is at fault.
+    InvalidField(&'static str),
 }
 
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            Error::NotFinite(q) => write!(f, "{q} is NaN or infinite"),
-            Error::OutOfRange(q) => write!(f, "{q} is out of range"),
-            Error::Overflow => f.write_str("result does not fit the number type"),
-            Error::DivisionByZero => f.write_str("division by zero"),
-            Error::MathDomain => f.write_str("argument outside the function's domain"),
+            Error::NotFinite(q) => write!(f, "{q} is NaN or infinite: pass a finite value"),
+            Error::OutOfRange(q) => {
+                write!(f, "{q} is out of range: see the routine's stated range")
+            }
+            Error::Overflow => f.write_str("result does not fit the number type: use a wider type"),
+            Error::DivisionByZero => f.write_str("division by zero: inputs coincide"),
+            Error::MathDomain => {
+                f.write_str("argument outside a function's domain: check the inputs' ranges")
+            }
             Error::TotalInternalReflection => {
-                f.write_str("total internal reflection: no refracted ray")
+                f.write_str("total internal reflection: no refracted ray at this angle")
             }
             Error::IndexAtOrAbovePrism => f.write_str(
-                "sample index at or above the prism index: no critical angle, out of range",
+                "sample index at or above the prism's: no critical angle; needs a denser prism",
             ),
-            Error::SensorOpen => f.write_str("temperature sensor open circuit"),
-            Error::SensorShorted => f.write_str("temperature sensor short circuit"),
-            Error::RecordTruncated => f.write_str("stored record is truncated"),
-            Error::RecordForeign => f.write_str("stored record has a foreign magic"),
-            Error::RecordCorrupt => f.write_str("stored record fails its checksum"),
-            Error::RecordVersionUnsupported => {
-                f.write_str("stored record has an unsupported format version")
+            Error::SensorOpen => {
+                f.write_str("temperature sensor open circuit: check its leads and connector")
             }
-            Error::CloserThanMacro => f.write_str("subject closer than the actuator's macro limit"),
-            Error::LowConfidence => f.write_str("estimate confidence below the gate"),
+            Error::SensorShorted => {
+                f.write_str("temperature sensor short circuit: check its leads for a short")
+            }
+            Error::RecordTruncated => {
+                f.write_str("stored record is truncated: calibrate and store again")
+            }
+            Error::RecordForeign => {
+                f.write_str("no calibration record (erased or foreign data): calibrate and store")
+            }
+            Error::RecordCorrupt => {
+                f.write_str("stored record fails its checksum: calibrate and store again")
+            }
+            Error::RecordVersionUnsupported => f.write_str(
+                "stored record has an unknown format version: update the firmware or recalibrate",
+            ),
+            Error::CloserThanMacro => {
+                f.write_str("subject closer than the lens's macro limit: move it further away")
+            }
+            Error::LowConfidence => {
+                f.write_str("estimate confidence below the gate: use a contrast search")
+            }
             Error::Boundary(fault) => write!(f, "boundary not measured: {fault}"),
             Error::Storage(fault) => write!(f, "calibration store: {fault}"),
             Error::RankDeficient => {
-                f.write_str("standards do not determine the curve: repeated positions")
+                f.write_str("standards do not determine the curve: use distinct positions")
+            }
+            Error::NotZeroed => f.write_str("no zero yet: zero on distilled water first"),
+            Error::RecordMismatch(field) => write!(
+                f,
+                "calibration record made for another unit ({field} differs): calibrate this unit"
+            ),
+            Error::InvalidField(field) => {
+                write!(
+                    f,
+                    "{field} outside its allowed values: correct the description"
+                )
             }
         }
     }
@@ -238,16 +281,28 @@ impl fmt::Display for BoundaryFault {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(match self {
             BoundaryFault::NoLight => {
-                "no light on the sensor (LED off or failed, or a sample at the prism's index)"
+                "no light on the sensor: check the LED (or the sample is at the prism's index)"
             }
-            BoundaryFault::NoBoundary => "no boundary on the sensor",
-            BoundaryFault::LowContrast => "boundary contrast too low",
-            BoundaryFault::Saturated => "sensor saturated near the boundary",
-            BoundaryFault::AtArrayEnd => "boundary at the end of the sensor",
-            BoundaryFault::MultipleBoundaries => "more than one boundary (bubble or dirty prism)",
+            BoundaryFault::NoBoundary => {
+                "no boundary on the sensor: apply a sample (or it is beyond the range)"
+            }
+            BoundaryFault::LowContrast => {
+                "boundary contrast too low: clean the prism and cover it with sample"
+            }
+            BoundaryFault::Saturated => {
+                "sensor saturated near the boundary: lower the LED current or exposure"
+            }
+            BoundaryFault::AtArrayEnd => {
+                "boundary at the end of the sensor: sample at the edge of the range"
+            }
+            BoundaryFault::MultipleBoundaries => {
+                "more than one boundary: clean the prism, remove bubbles"
+            }
         })
     }
 }
+
+impl core::error::Error for BoundaryFault {}
 
 impl From<BoundaryFault> for Error {
     fn from(f: BoundaryFault) -> Self {
@@ -280,14 +335,22 @@ pub enum StorageFault {
 impl fmt::Display for StorageFault {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(match self {
-            StorageFault::Geometry => "slots do not fit the device's geometry",
-            StorageFault::NotAligned => "device refused a misaligned access",
-            StorageFault::OutOfBounds => "device refused an access out of bounds",
-            StorageFault::Device => "device error",
-            StorageFault::Verify => "record read back differs from the record written",
+            StorageFault::Geometry => "slots do not fit the device: correct the store's layout",
+            StorageFault::NotAligned => {
+                "device refused a misaligned access: correct the store's layout"
+            }
+            StorageFault::OutOfBounds => {
+                "device refused an access out of bounds: correct the store's layout"
+            }
+            StorageFault::Device => "device error: retry, then have the flash serviced",
+            StorageFault::Verify => {
+                "record read back differs from the one written: old record kept; service the flash"
+            }
         })
     }
 }
+
+impl core::error::Error for StorageFault {}
 
 impl From<StorageFault> for Error {
     fn from(f: StorageFault) -> Self {

@@ -36,9 +36,6 @@
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
 
-#[cfg(feature = "std")]
-extern crate std;
-
 pub mod autofocus;
 pub mod error;
 pub mod media;

@@ -108,69 +108,107 @@ fn bus_error_is_reported_and_position_kept() {
 
 #[test]
 fn bad_layouts_and_profiles_are_refused() {
+    // Each refusal names the field of the description that is wrong.
     let bad_layouts = [
-        BusLayout {
-            address: 0x80,
-            ..TEN_BIT
-        },
-        BusLayout {
-            code_bits: 7,
-            ..TEN_BIT
-        },
-        BusLayout {
-            code_bits: 13,
-            ..TEN_BIT
-        },
-        BusLayout {
-            shift: 7,
-            ..TEN_BIT
-        }, // 10 + 7 > 16 bits
-        BusLayout {
-            fixed_bits: 0x0010,
-            ..TEN_BIT
-        }, // overlaps the code
-        BusLayout {
-            data_bytes: 3,
-            ..TEN_BIT
-        },
-        BusLayout {
-            code_bits: 10,
-            data_bytes: 1,
-            ..EIGHT_BIT
-        }, // 10 bits in one byte
-        BusLayout {
-            fixed_bits: 0x0100,
-            ..EIGHT_BIT
-        }, // beyond one byte
+        (
+            BusLayout {
+                address: 0x80,
+                ..TEN_BIT
+            },
+            "address",
+        ),
+        (
+            BusLayout {
+                code_bits: 7,
+                ..TEN_BIT
+            },
+            "code_bits",
+        ),
+        (
+            BusLayout {
+                code_bits: 13,
+                ..TEN_BIT
+            },
+            "code_bits",
+        ),
+        (
+            BusLayout {
+                shift: 7,
+                ..TEN_BIT
+            },
+            "shift",
+        ), // 10 + 7 > 16 bits
+        (
+            BusLayout {
+                fixed_bits: 0x0010,
+                ..TEN_BIT
+            },
+            "fixed_bits",
+        ), // overlaps the code
+        (
+            BusLayout {
+                data_bytes: 3,
+                ..TEN_BIT
+            },
+            "data_bytes",
+        ),
+        (
+            BusLayout {
+                code_bits: 10,
+                data_bytes: 1,
+                ..EIGHT_BIT
+            },
+            "shift",
+        ), // 10 bits in one byte
+        (
+            BusLayout {
+                fixed_bits: 0x0100,
+                ..EIGHT_BIT
+            },
+            "fixed_bits",
+        ), // beyond one byte
     ];
-    for layout in bad_layouts {
+    for (layout, field) in bad_layouts {
         let i2c = I2cMock::new(&[]);
         let delay = CheckedDelay::new(&[]);
-        assert!(
-            FocusActuatorDriver::new(i2c.clone(), delay.clone(), layout, MOTION).is_err(),
+        assert_eq!(
+            FocusActuatorDriver::new(i2c.clone(), delay.clone(), layout, MOTION).err(),
+            Some(Error::InvalidField(field)),
             "{layout:?}"
         );
         let (mut i2c, mut delay) = (i2c, delay);
         i2c.done();
         delay.done();
     }
-    for motion in [
-        MotionProfile {
-            max_step_codes: 0,
-            ..MOTION
-        },
-        MotionProfile {
-            resonance_hz: 5,
-            ..MOTION
-        },
-        MotionProfile {
-            settle_periods: 0,
-            ..MOTION
-        },
+    for (motion, field) in [
+        (
+            MotionProfile {
+                max_step_codes: 0,
+                ..MOTION
+            },
+            "max_step_codes",
+        ),
+        (
+            MotionProfile {
+                resonance_hz: 5,
+                ..MOTION
+            },
+            "resonance_hz",
+        ),
+        (
+            MotionProfile {
+                settle_periods: 0,
+                ..MOTION
+            },
+            "settle_periods",
+        ),
     ] {
         let mut i2c = I2cMock::new(&[]);
         let mut delay = CheckedDelay::new(&[]);
-        assert!(FocusActuatorDriver::new(i2c.clone(), delay.clone(), TEN_BIT, motion).is_err());
+        assert_eq!(
+            FocusActuatorDriver::new(i2c.clone(), delay.clone(), TEN_BIT, motion).err(),
+            Some(Error::InvalidField(field))
+        );
         i2c.done();
         delay.done();
     }

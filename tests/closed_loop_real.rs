@@ -695,8 +695,9 @@ fn water_below_the_brix_zero<S: Scalar>() -> (usize, usize, f64) {
         let nd20 = r.nd20.to_f64();
         // Water at 20 °C, IAPWS R9-97 over Ciddor air (`WATER_ND_AIR_IAPWS`).
         sq += (nd20 - WATER_ND_AIR_IAPWS[1].1).powi(2);
-        // 1.33299: the 0 % row of the ISO 1743 sucrose table (GOST R
-        // 50546-93, as in tests/world_cal.rs).
+        // 1.33299: water, the 0 % row of the ISO 1743 glucose-syrup table
+        // (GOST R 50546-93, tests/published/iso1743_glucose_syrup.rs), the
+        // entry the %Brix scale takes for 0 %.
         let v = r
             .scale_value
             .expect("water reads on the %Brix scale")
@@ -706,7 +707,7 @@ fn water_below_the_brix_zero<S: Scalar>() -> (usize, usize, f64) {
             assert!(v <= 0.0, "{nd20}: {v} %Brix");
         }
         // Water is 0 %Brix; 0.1 %Brix is about 1.5e-4 nD there (0 % at
-        // 1.33299, same table; 10 % at 1.34782, OIV-MA-AS2-02 Table II),
+        // 1.33299, the same row; 10 % at 1.34782, OIV-MA-AS2-02 Table II),
         // past 3σ of this noise, either side.
         assert!((-0.1..0.1).contains(&v), "{nd20}: {v} %Brix");
     }

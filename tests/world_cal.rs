@@ -707,17 +707,18 @@ fn salt_brine_against_the_crc_handbook_table() {
 
 #[test]
 fn battery_acid_density_against_the_crc_handbook_table() {
-    // Sulfuric acid rows of the same table, 4–60 % by mass (the scale's grid
-    // starts at 4 %; the 0.5–3 % rows are below a battery's range).
-    let acid: Vec<_> = crc_aqueous::SULFURIC_ACID
-        .iter()
-        .filter(|r| r.0 >= 4.0)
-        .collect();
+    // Sulfuric acid rows of the same table, 0.5–60 % by mass (the scale
+    // stores water and every fourth row from 4 %).
+    let acid: Vec<_> = crc_aqueous::SULFURIC_ACID.iter().collect();
     let rows: Vec<(f64, f64)> = acid.iter().map(|r| (r.2, r.1)).collect();
     let (wv, wn) = against_rows(BatteryAcidDensity, &rows, |i| acid[i].0 % 4.0 == 0.0);
     println!("battery acid density vs CRC: max {wv:.4} g/cm³, nD {wn:.1e}");
+    // The scale starts at water (0.9982 g/cm³) and reads water's density on
+    // the band below it; further below is out of range.
+    let water: f64 = BatteryAcidDensity.value_at(1.33299 - 1e-4).unwrap();
+    assert!((water - 0.9982).abs() < 1e-9);
     assert_eq!(
-        BatteryAcidDensity.value_at(1.3378f64),
+        BatteryAcidDensity.value_at(1.33299f64 - 2.01e-4),
         Err(Error::OutOfRange(Quantity::RefractiveIndex))
     );
     assert_eq!(

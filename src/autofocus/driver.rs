@@ -99,20 +99,24 @@ impl BusLayout {
     /// Checks the layout: address, width, that code and fixed bits fit the data
     /// bytes and do not overlap.
     fn check(&self) -> Result<Self, Error> {
-        let bad = Err(Error::OutOfRange(Quantity::Value));
-        if self.address > 0x7F || !(8..=12).contains(&self.code_bits) {
-            return bad;
+        if self.address > 0x7F {
+            return Err(Error::InvalidField("address"));
+        }
+        if !(8..=12).contains(&self.code_bits) {
+            return Err(Error::InvalidField("code_bits"));
         }
         if !(1..=2).contains(&self.data_bytes) {
-            return bad;
+            return Err(Error::InvalidField("data_bytes"));
         }
         let word_bits = 8 * u32::from(self.data_bytes);
         let code_mask = u32::from(self.max_code()) << u32::from(self.shift.min(16));
-        if u32::from(self.shift) + u32::from(self.code_bits) > word_bits
-            || u32::from(self.fixed_bits) >> word_bits != 0
+        if u32::from(self.shift) + u32::from(self.code_bits) > word_bits {
+            return Err(Error::InvalidField("shift"));
+        }
+        if u32::from(self.fixed_bits) >> word_bits != 0
             || code_mask & u32::from(self.fixed_bits) != 0
         {
-            return bad;
+            return Err(Error::InvalidField("fixed_bits"));
         }
         Ok(*self)
     }
@@ -161,13 +165,15 @@ impl MotionProfile {
     }
 
     fn check(&self) -> Result<Self, Error> {
-        if self.max_step_codes == 0
-            || !(10..=5000).contains(&self.resonance_hz)
-            || !(1..=10).contains(&self.settle_periods)
-        {
-            return Err(Error::OutOfRange(Quantity::Value));
+        if self.max_step_codes == 0 {
+            Err(Error::InvalidField("max_step_codes"))
+        } else if !(10..=5000).contains(&self.resonance_hz) {
+            Err(Error::InvalidField("resonance_hz"))
+        } else if !(1..=10).contains(&self.settle_periods) {
+            Err(Error::InvalidField("settle_periods"))
+        } else {
+            Ok(*self)
         }
-        Ok(*self)
     }
 }
 
@@ -205,6 +211,22 @@ pub enum DriverError<E> {
     /// The request was refused before touching the bus.
     Rejected(Error),
 }
+
+impl<E: core::fmt::Debug> core::fmt::Display for DriverError<E> {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            DriverError::Bus(e) => {
+                write!(
+                    f,
+                    "I2C transfer failed ({e:?}): check the wiring and the address"
+                )
+            }
+            DriverError::Rejected(e) => write!(f, "move refused: {e}"),
+        }
+    }
+}
+
+impl<E: core::fmt::Debug> core::error::Error for DriverError<E> {}
 
 impl<E> From<Error> for DriverError<E> {
     fn from(e: Error) -> Self {

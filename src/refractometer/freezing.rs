@@ -21,6 +21,7 @@
 //! safety data sheet and local rules on handling and disposal.
 
 use super::TradeScale;
+use super::scales::{table_from_water, table_to_water};
 use super::table::UniformCubicTable;
 use crate::error::{Error, Quantity};
 use crate::scalar::Scalar;
@@ -105,7 +106,8 @@ impl Alcohol {
     }
 }
 
-/// Alcohol content of a screen wash, % by mass, from nD at 20 °C.
+/// Alcohol content of a screen wash, % by mass, from nD at 20 °C; below
+/// water, the band %Brix has (small negative values).
 ///
 /// ```
 /// use embedded_optics::refractometer::{TradeScale, freezing::{Alcohol, ScreenWashMass}};
@@ -119,10 +121,10 @@ pub struct ScreenWashMass(pub Alcohol);
 
 impl<S: Scalar> TradeScale<S> for ScreenWashMass {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        self.0.tables().0.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(self.0.tables().0, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        self.0.tables().0.y_at(value, Quantity::ScaleValue)
+        table_to_water(self.0.tables().0, value)
     }
     fn unit(&self) -> &'static str {
         "% m/m"
@@ -145,7 +147,8 @@ pub struct ScreenWashFreezingPoint(pub Alcohol);
 impl<S: Scalar> TradeScale<S> for ScreenWashFreezingPoint {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
         let (nd, depression) = self.0.tables();
-        let mass = nd.x_at(nd20, Quantity::RefractiveIndex)?;
+        // On the band below water: water's own freezing point.
+        let mass = table_from_water(nd, nd20)?.max(S::ZERO);
         S::ZERO.sub(depression.y_at(mass, Quantity::ScaleValue)?)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {

@@ -8,8 +8,9 @@
 //! follow the product's safety data sheet.
 
 use super::TradeScale;
+use super::scales::{table_from_water, table_to_water};
 use super::table::UniformCubicTable;
-use crate::error::{Error, Quantity};
+use crate::error::Error;
 use crate::scalar::Scalar;
 
 /// Glycerol in water at 20 °C (Glycerine Producers' Association, "Physical
@@ -26,7 +27,11 @@ const GLYCEROL_ND: UniformCubicTable = UniformCubicTable {
 };
 
 /// Glycerol content of a glycerol–water mix, % by mass, 0–100 % (nD20
-/// 1.33303–1.47399). Against the published rows between its nodes it is
+/// 1.33303–1.47399). The table's 0 % row, water as measured for it, lies
+/// 4e-5 nD above water's 1.33299: water reads −0.035 %. Below the 0 % row
+/// the scale reads small negative values on the table's tangent down to the
+/// band below water that %Brix has
+/// ([`BELOW_WATER_BAND`](super::scales::BELOW_WATER_BAND)). Against the published rows between its nodes it is
 /// within 0.16 % by mass (the table's own steps are uneven there), and within
 /// 4.3e-4 nD of the CRC Handbook's glycerol rows (tests/world_glycerol.rs).
 ///
@@ -43,10 +48,10 @@ pub struct GlycerolMass;
 
 impl<S: Scalar> TradeScale<S> for GlycerolMass {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        GLYCEROL_ND.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(&GLYCEROL_ND, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        GLYCEROL_ND.y_at(value, Quantity::ScaleValue)
+        table_to_water(&GLYCEROL_ND, value)
     }
     fn unit(&self) -> &'static str {
         "% glycerol"

@@ -31,7 +31,7 @@
 //! A %Brix reading stays in the %Brix domain: no conversion back from nD at
 //! 20 °C. Costs in `docs/cost.md`.
 //!
-//! Number types: f32, f64 and I32F32 run the whole chain from the same code;
+//! Number types: f32, f64, I32F32 and I8F24 run the whole chain from the same code;
 //! the LED wavelength is carried in µm inside (the unit of [`Medium`] and
 //! [`WavelengthCorrection`]), so nothing in the chain needs a range beyond I8F24's
 //! for the wavelength.

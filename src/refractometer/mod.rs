@@ -156,7 +156,7 @@ pub trait TradeScale<S: Scalar> {
     fn value_at(&self, nd20: S) -> Result<S, Error>;
     /// nD at 20 °C for a scale value (for preparing standards).
     fn nd20_at(&self, value: S) -> Result<S, Error>;
-    /// Unit, for display (`"%Brix"`, `"g/kg"`, ...).
+    /// Unit, for display (`"%Brix"`, `"‰"`, ...), as the scale's source names it.
     fn unit(&self) -> &'static str;
 
     /// The scale value from a value in a sample domain, where the scale is

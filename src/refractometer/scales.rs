@@ -4,18 +4,22 @@
 //! | scale | unit | range | source |
 //! |---|---|---|---|
 //! | [`SucroseBrix`] | %Brix | 0–85 (−0.14 near water, see [`BELOW_WATER_BAND`]) | ICUMSA SPS-3 sucrose table (5 %Brix entries, cubic interpolation) |
-//! | [`Salinity`] | ‰ (≈ g/kg) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
+//! | [`Salinity`] | ‰ (as Quan & Fry give it) | 0–43 | Quan & Fry 1995 seawater index relation at 20 °C, 589.3 nm |
 //! | [`HoneyWater`] | % water | 13–25 | Wedmore relation as used with the Chataway table (IHC Harmonised Methods) |
 //! | [`MustPotentialAlcohol`] | % vol | 4.88–18.35 | OIV-MA-AS2-02 Table II (16.83 g/L sugar per % vol) |
 //! | [`SaltBrine`] | % NaCl by mass | 0–26 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 2 % grid) |
 //! | [`EthyleneGlycolMass`] | % by mass | 0–60 | CRC Handbook, concentrative properties of aqueous solutions (cubic on a 4 % grid) |
 //! | [`EthyleneGlycolFreezingPoint`] | °C | 0 to −51.2 | same table, freezing-point depression |
-//! | [`BatteryAcidDensity`] | g/cm³ at 20 °C | 1.025–1.499 | same table, sulfuric acid density |
+//! | [`BatteryAcidDensity`] | g/cm³ at 20 °C | 0.9982–1.499 | same table, sulfuric acid density |
 //! | [`IndexScale`] | nD | any index ≥ 1 | nD itself |
 //! | [`UserScale`] | user's | user's | a [`LinearTable`] of the user's own |
 //!
 //! Outside its range a scale returns [`Error::OutOfRange`]: a reading is never
-//! extrapolated beyond the published table.
+//! extrapolated beyond the published table, with one exception: every scale
+//! whose range starts at water reads down to [`BELOW_WATER_BAND`] below water
+//! (small values below its zero, or water's own value for a freezing point or
+//! a density), so that a water check on a drifting zero is read, not refused.
+//! Each scale accepts its published table's end rows.
 //!
 //! Scales of other trades have modules of their own:
 //! [`urea`](super::urea) (AUS 32), [`freezing`](super::freezing) (screen
@@ -79,6 +83,40 @@ pub const BELOW_WATER_BAND: f64 = 2e-4;
 
 /// nD of water at 20 °C, 589.3 nm, relative to air: the table's 0 %Brix entry.
 const WATER_ND: f64 = 1.33299;
+
+/// The lowest nD a scale that starts at water reads: water less
+/// [`BELOW_WATER_BAND`], the same for every scale.
+const BAND_FLOOR_ND: f64 = WATER_ND - BELOW_WATER_BAND;
+
+/// A scale value from a table whose first entry is water (or, from a source
+/// that measured its water a little higher, just above it): from there down
+/// to [`BAND_FLOOR_ND`] the table's tangent at its first entry gives a small
+/// value below the scale's zero, as %Brix has; above, the table.
+pub(crate) fn table_from_water<S: Scalar>(table: &UniformCubicTable, nd20: S) -> Result<S, Error> {
+    let zero = table.y_first::<S>()?;
+    if nd20 < zero && nd20 >= lit!(S, BAND_FLOOR_ND) {
+        let (x0, _) = table.x_range::<S>()?;
+        return x0.add(nd20.sub(zero)?.div(table.slope_at_first()?)?);
+    }
+    table.x_at(nd20, Quantity::RefractiveIndex)
+}
+
+/// The inverse of [`table_from_water`]: below the table's first value, the
+/// same tangent, down to [`BAND_FLOOR_ND`].
+pub(crate) fn table_to_water<S: Scalar>(table: &UniformCubicTable, value: S) -> Result<S, Error> {
+    let (x0, _) = table.x_range::<S>()?;
+    if value < x0 {
+        let nd = table
+            .y_first::<S>()?
+            .add(value.sub(x0)?.mul(table.slope_at_first()?)?)?;
+        return if nd >= lit!(S, BAND_FLOOR_ND) {
+            Ok(nd)
+        } else {
+            Err(Error::OutOfRange(Quantity::ScaleValue))
+        };
+    }
+    table.y_at(value, Quantity::ScaleValue)
+}
 
 /// dnD/d%Brix of the table's cubic at 0 %Brix (the four-point Lagrange
 /// derivative through the first four entries), used on the band below water:
@@ -237,12 +275,20 @@ impl<S: Scalar> TradeScale<S> for SucroseBrix {
     }
 }
 
-/// Salinity of seawater, ‰ (practical salinity, ≈ g/kg), 0–43 ‰.
+/// Salinity of seawater, ‰, 0–43 ‰, as Quan & Fry 1995 give it.
 ///
 /// Quan & Fry 1995 (Appl. Opt. 34, 3477) fit to the Austin & Halikas seawater
 /// data, taken at 20 °C and 589.3 nm, is linear in salinity there:
-/// `nD = 1.3330044 + 1.828995e-4 · S` (coefficients `// from memory`). Brines
-/// other than seawater (salted pickles, aquarium mixes) read approximately.
+/// `nD = 1.3330044 + 1.828995e-4 · S` (coefficients `// from memory`). The
+/// unit is theirs, salinity in ‰ (parts per thousand): neither the unitless
+/// practical salinity of PSS-78 nor TEOS-10's absolute salinity in g/kg,
+/// though close to both for open-ocean water. Brines other than seawater
+/// (salted pickles, aquarium mixes) read approximately.
+///
+/// The relation's zero lies 1.4e-5 nD above water's 1.33299 (its fit there):
+/// water reads −0.08 ‰. Below the zero the scale reads small negative values
+/// on the same line down to the band below water that %Brix has
+/// ([`BELOW_WATER_BAND`]), so that a water check is read, not refused.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Salinity;
@@ -253,20 +299,36 @@ const SALINITY_N0: f64 = 1.333_004_434;
 const SALINITY_SLOPE_PER_MILLE: f64 = 1.828_995_2e-4;
 /// Highest salinity of the data behind the relation.
 const SALINITY_MAX: f64 = 43.0;
+/// The relation's nD at [`SALINITY_MAX`].
+const SALINITY_TOP_ND: f64 = SALINITY_N0 + SALINITY_SLOPE_PER_MILLE * SALINITY_MAX;
+/// The salinity at [`BAND_FLOOR_ND`] (about −1.2 ‰).
+const SALINITY_MIN: f64 = (BAND_FLOOR_ND - SALINITY_N0) / SALINITY_SLOPE_PER_MILLE;
+/// How far past the top an index may lie and be read as the top: the
+/// rounding of nD in I8F24 (6e-8) and of the relation's own value, 0.0005 ‰.
+const END_ROUNDING_ND: f64 = 1e-7;
 
 impl<S: Scalar> TradeScale<S> for Salinity {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        let hi = lit!(S, SALINITY_N0 + SALINITY_SLOPE_PER_MILLE * SALINITY_MAX);
-        let n = nd20.check_range(Quantity::RefractiveIndex, lit!(S, SALINITY_N0), hi)?;
+        let n = nd20.check_range(
+            Quantity::RefractiveIndex,
+            lit!(S, BAND_FLOOR_ND),
+            lit!(S, SALINITY_TOP_ND + END_ROUNDING_ND),
+        )?;
         // (n - n0) · 100 · 100 / (slope · 10⁴) keeps I8F24 digits (10⁴ itself
         // does not fit I8F24).
-        n.sub(lit!(S, SALINITY_N0))?
+        let s = n
+            .sub(lit!(S, SALINITY_N0))?
             .mul(lit!(S, 100.0))?
             .mul(lit!(S, 100.0))?
-            .div(lit!(S, SALINITY_SLOPE_PER_MILLE * 10_000.0))
+            .div(lit!(S, SALINITY_SLOPE_PER_MILLE * 10_000.0))?;
+        Ok(s.min(lit!(S, SALINITY_MAX)))
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        let s = value.check_range(Quantity::ScaleValue, S::ZERO, lit!(S, SALINITY_MAX))?;
+        let s = value.check_range(
+            Quantity::ScaleValue,
+            lit!(S, SALINITY_MIN),
+            lit!(S, SALINITY_MAX),
+        )?;
         s.mul(lit!(S, SALINITY_SLOPE_PER_MILLE * 10_000.0))?
             .mul(lit!(S, 0.01))?
             .mul(lit!(S, 0.01))?
@@ -305,8 +367,11 @@ fn honey_nd<S: Scalar>(w: S) -> Result<S, Error> {
 impl<S: Scalar> TradeScale<S> for HoneyWater {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
         // The range in nD, from the range in W (nD falls as W rises).
-        let lo = honey_nd(lit!(S, HONEY_W_MAX))?;
-        let hi = honey_nd(lit!(S, HONEY_W_MIN))?;
+        // The table's last digit (1e-4 nD) rounds its end rows up to half
+        // of it past the formula's ends: they are read as the ends.
+        let hair = lit!(S, 5e-5);
+        let lo = honey_nd(lit!(S, HONEY_W_MAX))?.sub(hair)?;
+        let hi = honey_nd(lit!(S, HONEY_W_MIN))?.add(hair)?;
         let n = nd20.check_range(Quantity::RefractiveIndex, lo, hi)?;
         let log10 = n
             .sub(S::ONE)?
@@ -423,10 +488,10 @@ pub struct EthyleneGlycolMass;
 
 impl<S: Scalar> TradeScale<S> for EthyleneGlycolMass {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        GLYCOL_ND.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(&GLYCOL_ND, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        GLYCOL_ND.y_at(value, Quantity::ScaleValue)
+        table_to_water(&GLYCOL_ND, value)
     }
     fn unit(&self) -> &'static str {
         "% m/m"
@@ -453,7 +518,8 @@ pub struct EthyleneGlycolFreezingPoint;
 
 impl<S: Scalar> TradeScale<S> for EthyleneGlycolFreezingPoint {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        let mass = GLYCOL_ND.x_at(nd20, Quantity::RefractiveIndex)?;
+        // On the band below water: water's own freezing point.
+        let mass = table_from_water(&GLYCOL_ND, nd20)?.max(S::ZERO);
         let depression = GLYCOL_FREEZING_DEPRESSION.y_at(mass, Quantity::ScaleValue)?;
         S::ZERO.sub(depression)
     }
@@ -490,44 +556,46 @@ pub struct SaltBrine;
 
 impl<S: Scalar> TradeScale<S> for SaltBrine {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        BRINE_ND.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(&BRINE_ND, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        BRINE_ND.y_at(value, Quantity::ScaleValue)
+        table_to_water(&BRINE_ND, value)
     }
     fn unit(&self) -> &'static str {
         "% NaCl"
     }
 }
 
-/// Sulfuric acid in water at 20 °C (same handbook table): nD × 10⁴ at 4, 8,
-/// ..., 60 % by mass.
+/// Sulfuric acid in water at 20 °C (same handbook table): nD × 10⁵ at 0, 4,
+/// ..., 60 % by mass; the 0 % node is water, 1.33299, the others the
+/// handbook's four decimals.
 const ACID_ND: UniformCubicTable = UniformCubicTable {
-    x0: 4,
+    x0: 0,
     step: 4,
     x_den: 1,
     ys: &[
-        13379, 13427, 13475, 13525, 13576, 13628, 13677, 13725, 13773, 13821, 13870, 13920, 13971,
-        14024, 14077,
+        133299, 133790, 134270, 134750, 135250, 135760, 136280, 136770, 137250, 137730, 138210,
+        138700, 139200, 139710, 140240, 140770,
     ],
-    y_den: 10_000,
+    y_den: 100_000,
 };
 
-/// Density of the same solutions at 20 °C, g/cm³ × 10⁴, on the same grid.
+/// Density of the same solutions at 20 °C, g/cm³ × 10⁴, on the same grid;
+/// the 0 % node is water at 20 °C, 0.9982 (CRC Handbook, `// from memory`).
 const ACID_DENSITY: UniformCubicTable = UniformCubicTable {
-    x0: 4,
+    x0: 0,
     step: 4,
     x_den: 1,
     ys: &[
-        10250, 10522, 10802, 11094, 11398, 11714, 12031, 12353, 12685, 13028, 13386, 13759, 14149,
-        14558, 14987,
+        9982, 10250, 10522, 10802, 11094, 11398, 11714, 12031, 12353, 12685, 13028, 13386, 13759,
+        14149, 14558, 14987,
     ],
     y_den: 10_000,
 };
 
 /// Density at 20 °C of sulfuric acid electrolyte (lead–acid batteries),
-/// g/cm³, 1.025–1.499 (4–60 % by mass, nD 1.3379–1.4077), through the mass
-/// fraction.
+/// g/cm³, 0.9982–1.499 (water to 60 % by mass, nD 1.33299–1.4077), through
+/// the mass fraction; water (and the band below it) reads water's density.
 ///
 /// Battery makers quote "specific gravity", often referred to water at 25 °C
 /// or 80 °F; that differs from this density by up to a few parts in a
@@ -540,7 +608,8 @@ pub struct BatteryAcidDensity;
 
 impl<S: Scalar> TradeScale<S> for BatteryAcidDensity {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        let mass = ACID_ND.x_at(nd20, Quantity::RefractiveIndex)?;
+        // On the band below water: water's own density.
+        let mass = table_from_water(&ACID_ND, nd20)?.max(S::ZERO);
         ACID_DENSITY.y_at(mass, Quantity::ScaleValue)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {

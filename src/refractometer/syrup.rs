@@ -15,6 +15,7 @@
 //! Hot syrup scalds: sample syrups above 45 °C with the plant's protective
 //! equipment.
 
+use super::scales::{table_from_water, table_to_water};
 use super::table::UniformCubicTable;
 use super::{SampleCompensation, TradeScale};
 use crate::error::{Error, Quantity};
@@ -54,7 +55,7 @@ const N60: UniformCubicTable = column(&[
 ]);
 
 /// Dry matter of glucose syrup, % by mass, 0–64 % (nD20 1.33299–1.45748),
-/// ISO 1743.
+/// ISO 1743; below water, the band %Brix has (small negative values).
 ///
 /// ```
 /// use embedded_optics::refractometer::{TradeScale, syrup::GlucoseSyrupDryMatter};
@@ -68,10 +69,10 @@ pub struct GlucoseSyrupDryMatter;
 
 impl<S: Scalar> TradeScale<S> for GlucoseSyrupDryMatter {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        N20.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(&N20, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        N20.y_at(value, Quantity::ScaleValue)
+        table_to_water(&N20, value)
     }
     fn unit(&self) -> &'static str {
         "% dry matter"

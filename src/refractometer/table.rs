@@ -205,10 +205,17 @@ pub struct LinearTable {
 impl LinearTable {
     /// Checks and wraps a table: at least two points, positive denominators,
     /// `x` strictly increasing, `y` strictly monotonic. Otherwise
-    /// [`Error::OutOfRange`] with [`Quantity::Value`].
+    /// [`Error::InvalidField`] naming `points`, `x_den` or `y_den`.
     pub const fn new(points: &'static [(i32, i32)], x_den: i32, y_den: i32) -> Result<Self, Error> {
-        if points.len() < 2 || x_den <= 0 || y_den <= 0 {
-            return Err(Error::OutOfRange(Quantity::Value));
+        let bad_points = Err(Error::InvalidField("points"));
+        if points.len() < 2 {
+            return bad_points;
+        }
+        if x_den <= 0 {
+            return Err(Error::InvalidField("x_den"));
+        }
+        if y_den <= 0 {
+            return Err(Error::InvalidField("y_den"));
         }
         let increasing = points[1].1 > points[0].1;
         let mut i = 1;
@@ -217,13 +224,13 @@ impl LinearTable {
             let (x1, y1) = points[i];
             // Differences must fit an i32 for the integer subtraction later.
             if x1 <= x0 || (x1 as i64 - x0 as i64) > i32::MAX as i64 {
-                return Err(Error::OutOfRange(Quantity::Value));
+                return bad_points;
             }
             if (y1 > y0) != increasing
                 || y1 == y0
                 || (y1 as i64 - y0 as i64).abs() > i32::MAX as i64
             {
-                return Err(Error::OutOfRange(Quantity::Value));
+                return bad_points;
             }
             i += 1;
         }
@@ -367,15 +374,25 @@ pub struct UniformCubicTable {
 }
 
 impl UniformCubicTable {
-    fn valid(&self) -> bool {
-        self.ys.len() >= 4
-            && self.step > 0
-            && self.x_den > 0
-            && self.y_den > 0
-            && self.ys.windows(2).all(|w| match (w.first(), w.get(1)) {
-                (Some(a), Some(b)) => b > a,
-                _ => false,
-            })
+    /// The table's own fields: [`Error::InvalidField`] naming the first
+    /// that is wrong (fewer than four or not increasing `ys`, a step or
+    /// denominator not positive).
+    fn check(&self) -> Result<(), Error> {
+        let increasing = self.ys.windows(2).all(|w| match (w.first(), w.get(1)) {
+            (Some(a), Some(b)) => b > a,
+            _ => false,
+        });
+        if self.ys.len() < 4 || !increasing {
+            Err(Error::InvalidField("ys"))
+        } else if self.step <= 0 {
+            Err(Error::InvalidField("step"))
+        } else if self.x_den <= 0 {
+            Err(Error::InvalidField("x_den"))
+        } else if self.y_den <= 0 {
+            Err(Error::InvalidField("y_den"))
+        } else {
+            Ok(())
+        }
     }
 
     fn y(&self, i: usize) -> Result<i32, Error> {
@@ -433,11 +450,33 @@ impl UniformCubicTable {
         ))
     }
 
+    /// `y` at the first entry.
+    pub(crate) fn y_first<S: Scalar>(&self) -> Result<S, Error> {
+        S::from_ratio(self.y(0)?, self.y_den)
+    }
+
+    /// dy/dx of the cubic at the first entry: the four-point Lagrange
+    /// derivative `(−11·y0 + 18·y1 − 9·y2 + 2·y3) / (6·step)`, what a scale
+    /// continues on just below its table (the band below water).
+    pub(crate) fn slope_at_first<S: Scalar>(&self) -> Result<S, Error> {
+        let y = |i: usize| -> Result<i64, Error> { Ok(i64::from(self.y(i)?)) };
+        // Four i32 values times at most 18: below 2^37, no i64 overflow.
+        let num = -11 * y(0)? + 18 * y(1)? - 9 * y(2)? + 2 * y(3)?;
+        let num = i64::from(self.x_den)
+            .checked_mul(num)
+            .and_then(|v| i32::try_from(v).ok())
+            .ok_or(Error::Overflow)?;
+        let den = self
+            .step
+            .checked_mul(6)
+            .and_then(|v| v.checked_mul(self.y_den))
+            .ok_or(Error::Overflow)?;
+        S::from_ratio(num, den)
+    }
+
     /// `y` at `x`; outside the grid [`Error::OutOfRange`] for `q`.
     pub fn y_at<S: Scalar>(&self, x: S, q: Quantity) -> Result<S, Error> {
-        if !self.valid() {
-            return Err(Error::OutOfRange(Quantity::Value));
-        }
+        self.check()?;
         if let Some(raw) = Raw::<S>::of() {
             return self.y_at_raw(x, q, raw);
         }
@@ -463,9 +502,7 @@ impl UniformCubicTable {
     /// Newton steps from the straight-line guess inside that segment. Outside
     /// the table [`Error::OutOfRange`] for `q`.
     pub fn x_at<S: Scalar>(&self, y: S, q: Quantity) -> Result<S, Error> {
-        if !self.valid() {
-            return Err(Error::OutOfRange(Quantity::Value));
-        }
+        self.check()?;
         if let Some(raw) = Raw::<S>::of() {
             return self.x_at_raw(y, q, raw);
         }

@@ -208,7 +208,7 @@ pub struct Beta<S> {
 impl<S: Scalar> ThermistorModel<S> for Beta<S> {
     fn temperature_c(&self, ln_ohms: S) -> Result<S, Error> {
         if self.beta_k < 100 || self.beta_k > 12_700 {
-            return Err(Error::OutOfRange(Quantity::Value));
+            return Err(Error::InvalidField("beta_k"));
         }
         let l = ln_ohms.check_range(Quantity::Resistance, S::ZERO, lit!(S, 21.5))?;
         let t0 = self.t0_c.check_range(

@@ -11,8 +11,9 @@
 //! for spills and disposal.
 
 use super::TradeScale;
+use super::scales::{table_from_water, table_to_water};
 use super::table::UniformCubicTable;
-use crate::error::{Error, Quantity};
+use crate::error::Error;
 use crate::lit;
 use crate::scalar::Scalar;
 
@@ -42,7 +43,8 @@ pub const AUS32_UREA_MIN: f64 = 31.8;
 pub const AUS32_UREA_MAX: f64 = 33.2;
 
 /// Urea content of a urea–water solution (AUS 32 / diesel exhaust fluid), %
-/// by mass, 0–44 % (nD20 1.33299–1.4018), from the CRC Handbook's rows.
+/// by mass, 0–44 % (nD20 1.33299–1.4018), from the CRC Handbook's rows;
+/// below water, the band %Brix has (small negative values).
 ///
 /// ```
 /// use embedded_optics::refractometer::{TradeScale, urea::UreaMass};
@@ -68,10 +70,10 @@ impl UreaMass {
 
 impl<S: Scalar> TradeScale<S> for UreaMass {
     fn value_at(&self, nd20: S) -> Result<S, Error> {
-        UREA_ND.x_at(nd20, Quantity::RefractiveIndex)
+        table_from_water(&UREA_ND, nd20)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        UREA_ND.y_at(value, Quantity::ScaleValue)
+        table_to_water(&UREA_ND, value)
     }
     fn unit(&self) -> &'static str {
         "% urea"

@@ -55,7 +55,13 @@ impl<S: Scalar> TradeScale<S> for MustDensity {
         MUST_DENSITY.y_at(sugar, Quantity::RefractiveIndex)
     }
     fn nd20_at(&self, value: S) -> Result<S, Error> {
-        let sugar = MUST_DENSITY.x_at(value, Quantity::ScaleValue)?;
+        // A density a hair off the table's ends (rounded in the number
+        // type: 39.1 °Oe is 1.03909999 in I8F24) is taken at the end.
+        let rho = value
+            .check_range(Quantity::ScaleValue, lit!(S, 1.03909), lit!(S, 1.12871))?
+            .max(lit!(S, 1.0391))
+            .min(lit!(S, 1.1287));
+        let sugar = MUST_DENSITY.x_at(rho, Quantity::ScaleValue)?;
         SucroseBrix.nd20_at(sugar)
     }
     fn unit(&self) -> &'static str {

@@ -79,15 +79,16 @@ const GLYCOL_DEPRESSION: [f64; 16] = [
     44.83, 51.23,
 ];
 
-/// CRC Handbook rows the battery-acid scale stores: nD and density at 4, 8,
-/// ..., 60 % by mass.
-const ACID_ND: [f64; 15] = [
-    1.3379, 1.3427, 1.3475, 1.3525, 1.3576, 1.3628, 1.3677, 1.3725, 1.3773, 1.3821, 1.387, 1.392,
-    1.3971, 1.4024, 1.4077,
+/// What the battery-acid scale stores: water at 0 % (nD 1.33299; density
+/// 0.9982 g/cm³, CRC Handbook, from memory) and the CRC Handbook rows at 4,
+/// 8, ..., 60 % by mass.
+const ACID_ND: [f64; 16] = [
+    1.33299, 1.3379, 1.3427, 1.3475, 1.3525, 1.3576, 1.3628, 1.3677, 1.3725, 1.3773, 1.3821, 1.387,
+    1.392, 1.3971, 1.4024, 1.4077,
 ];
-const ACID_DENSITY: [f64; 15] = [
-    1.025, 1.0522, 1.0802, 1.1094, 1.1398, 1.1714, 1.2031, 1.2353, 1.2685, 1.3028, 1.3386, 1.3759,
-    1.4149, 1.4558, 1.4987,
+const ACID_DENSITY: [f64; 16] = [
+    0.9982, 1.025, 1.0522, 1.0802, 1.1094, 1.1398, 1.1714, 1.2031, 1.2353, 1.2685, 1.3028, 1.3386,
+    1.3759, 1.4149, 1.4558, 1.4987,
 ];
 
 fn glycol_mass(nd: f64) -> f64 {
@@ -165,14 +166,14 @@ case! {
     pub struct BatteryAcidFromNd;
     name: "refractometer::scales::BatteryAcidDensity::value_at",
     unit: "g/cm³",
-    domain: "nD 1.3379–1.4077 (4–60 % by mass)",
+    domain: "nD 1.33299–1.4077 (0–60 % by mass)",
     budget: Budget { f64: 1.0e-13, f32: 2.0e-6, i32f32: 3.0e-8, i8f24: 2.0e-6 },
     inputs: {
-    span(1.3379, 1.4077, 601).map(|x| vec![x]).collect()
+    span(1.33299, 1.4077, 601).map(|x| vec![x]).collect()
     },
     reference(x): {
-    let mass = invert(|w| uniform_cubic(&ACID_ND, 4.0, 4.0, w), x[0], 4.0, 60.0);
-    Some(uniform_cubic(&ACID_DENSITY, 4.0, 4.0, mass))
+    let mass = invert(|w| uniform_cubic(&ACID_ND, 0.0, 4.0, w), x[0], 0.0, 60.0);
+    Some(uniform_cubic(&ACID_DENSITY, 0.0, 4.0, mass))
     },
     eval(x): {
     BatteryAcidDensity.value_at(x[0])
@@ -223,6 +224,9 @@ case! {
     span(1.4741, 1.5043, 603).map(|x| vec![x]).collect()
     },
     reference(x): {
+    // Wedmore's relation behind the Chataway table, as the Harmonised
+    // Methods of the International Honey Commission (method 1) give it:
+    // W = (−0.2681 − log10(nD − 1)) / 0.002243 (from memory).
     Some((-0.2681 - (x[0] - 1.0).log10()) / 0.002243)
     },
     eval(x): {

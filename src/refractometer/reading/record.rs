@@ -232,6 +232,29 @@ impl CalibrationRecord {
         }
     }
 
+    /// Whether this record belongs to a unit whose LED emits at
+    /// `led_wavelength_pm` (pm): a record made for another LED is
+    /// [`Error::RecordMismatch`] naming `led_wavelength_pm`, for a restore to
+    /// refuse before it touches the unit's calibration.
+    ///
+    /// ```
+    /// use embedded_optics::Error;
+    /// use embedded_optics::refractometer::record::CalibrationRecord;
+    /// let rec = CalibrationRecord::factory(589_300);
+    /// assert_eq!(rec.check_made_for(589_300), Ok(()));
+    /// assert_eq!(
+    ///     rec.check_made_for(656_300),
+    ///     Err(Error::RecordMismatch("led_wavelength_pm"))
+    /// );
+    /// ```
+    pub const fn check_made_for(&self, led_wavelength_pm: u32) -> Result<(), Error> {
+        if self.led_wavelength_pm == led_wavelength_pm {
+            Ok(())
+        } else {
+            Err(Error::RecordMismatch("led_wavelength_pm"))
+        }
+    }
+
     /// The record to write next: same contents with `sequence + 1` (wrapping).
     pub const fn successor(self) -> Self {
         Self {
