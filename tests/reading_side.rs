@@ -479,3 +479,33 @@ fn meter_reads_what_the_exact_instrument_reads() {
         );
     }
 }
+
+#[test]
+fn meter_refuses_what_it_cannot_do_with_the_fault_named() {
+    // A bad design field, a span before any zero, a record for another LED.
+    let mut bad = design(OIV_GRID);
+    bad.frames_log2 = 5;
+    assert_eq!(
+        BrixMeter::<f32>::new(&bad).err(),
+        Some(Error::InvalidField("frames_log2"))
+    );
+    bad.frames_log2 = 0;
+    bad.settle_readings = 1;
+    assert_eq!(
+        BrixMeter::<f32>::new(&bad).err(),
+        Some(Error::InvalidField("settle_readings"))
+    );
+    let d = design(OIV_GRID);
+    let mut meter = BrixMeter::<I8F24>::new(&d).unwrap();
+    let (code, t) = code_near(20.0);
+    let f = frame(at_led(20.0, t), t);
+    let mean = meter.feed(&f, code).unwrap().unwrap();
+    assert_eq!(meter.span(&mean, s::<I8F24>(20.0)), Err(Error::NotZeroed));
+    let blank = embedded_optics::refractometer::record::choose_slots(&[0xFF; 64], &[0xFF; 64]);
+    let mut record = meter.calibration_record(&blank).unwrap();
+    record.led_wavelength_pm = 650_000;
+    assert_eq!(
+        meter.restore(&record),
+        Err(Error::RecordMismatch("led_wavelength_pm"))
+    );
+}

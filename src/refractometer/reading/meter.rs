@@ -147,15 +147,18 @@ pub struct BrixMeter<'a, S> {
 
 impl<'a, S: Scalar> BrixMeter<'a, S> {
     /// A meter of `design`, uncalibrated (index as mapped). Refuses a design
-    /// whose frame count, settling window or dispersion ratio is out of range.
+    /// whose frame count, settling window or dispersion ratio is out of range
+    /// ([`Error::InvalidField`] naming it).
     pub fn new(design: &'a MeterDesign<'a>) -> Result<Self, Error> {
-        let window = usize::from(design.settle_readings);
-        if design.frames_log2 > 4 || !(2..=SETTLE_WINDOW_MAX).contains(&window) {
-            return Err(Error::OutOfRange(Quantity::Value));
+        if design.frames_log2 > 4 {
+            return Err(Error::InvalidField("frames_log2"));
+        }
+        if !(2..=SETTLE_WINDOW_MAX).contains(&usize::from(design.settle_readings)) {
+            return Err(Error::InvalidField("settle_readings"));
         }
         // r between 0.9 and 1.1 (any LED from 400 to 1000 nm on water).
         if !(966_367_642..=1_181_116_006).contains(&design.dispersion_ratio_q30) {
-            return Err(Error::OutOfRange(Quantity::Dispersion));
+            return Err(Error::InvalidField("dispersion_ratio_q30"));
         }
         let stated = [
             millis(design.temperature_uncertainty_mc),
@@ -390,12 +393,11 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
 
     /// Span on a sucrose standard of `brix20` %Brix (at 20 °C) read as
     /// `mean`: sets the gain through this session's water zero, which stays.
-    /// `OutOfRange(RefractiveIndex)` before a zero, or for a standard within
-    /// 0.005 nD of water (too close to set a gain).
+    /// [`Error::NotZeroed`] before a zero in this session;
+    /// `OutOfRange(RefractiveIndex)` for a standard within 0.005 nD of water
+    /// (too close to set a gain).
     pub fn span(&mut self, mean: &Mean<S>, brix20: S) -> Result<(), Error> {
-        let (zero_index, water) = self
-            .zero
-            .ok_or(Error::OutOfRange(Quantity::RefractiveIndex))?;
+        let (zero_index, water) = self.zero.ok_or(Error::NotZeroed)?;
         let b20 = brix20.check_range(Quantity::ScaleValue, S::ZERO, lit!(S, 85.0))?;
         let t = mean.temperature_c;
         // %Brix the standard reads at t: b + C(t, b) = b20, by iteration
@@ -436,13 +438,12 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
     }
 
     /// Restores the calibration from a record read at boot. Refused, the
-    /// meter unchanged: a record for another LED (`OutOfRange(Wavelength)`),
+    /// meter unchanged: a record for another LED
+    /// ([`Error::RecordMismatch`]),
     /// a quadratic term, or coefficients outside the ranges a calibration
     /// sets (`OutOfRange(RefractiveIndex)`).
     pub fn restore(&mut self, record: &CalibrationRecord) -> Result<(), Error> {
-        if record.led_wavelength_pm != self.design.led_wavelength_pm {
-            return Err(Error::OutOfRange(Quantity::Wavelength));
-        }
+        record.check_made_for(self.design.led_wavelength_pm)?;
         let c = record.correction::<S>()?;
         if c.c2 != S::ZERO {
             return Err(Error::OutOfRange(Quantity::RefractiveIndex));
