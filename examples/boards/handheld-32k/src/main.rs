@@ -295,9 +295,26 @@ fn main() -> ! {
             defmt::info!("record {=u32} restored", record.sequence);
         }
     }
+    // SysTick counts core cycles; under QEMU `-icount` it counts executed
+    // instructions (the bench's method): each reading's cost, for the
+    // worst-to-typical ratio over the run's temperatures.
+    let mut syst = cortex_m::Peripherals::take().map(|p| p.SYST);
+    if let Some(st) = syst.as_mut() {
+        st.set_clock_source(cortex_m::peripheral::syst::SystClkSource::Core);
+        st.set_reload(0x00FF_FFFF);
+        st.clear_current();
+        st.enable_counter();
+    }
+    let (mut fewest, mut most) = (u32::MAX, 0u32);
     let mut ok = true;
     for (k, want) in EXPECTED.iter().enumerate() {
-        let reading = mean_of(&mut meter, k + 2, &mut frame).map(|m| meter.read(&m));
+        let reading = mean_of(&mut meter, k + 2, &mut frame).map(|m| {
+            let start = cortex_m::peripheral::SYST::get_current();
+            let r = meter.read(core::hint::black_box(&m));
+            let ticks = start.wrapping_sub(cortex_m::peripheral::SYST::get_current()) & 0x00FF_FFFF;
+            (fewest, most) = (fewest.min(ticks), most.max(ticks));
+            r
+        });
         let Some(Ok(r)) = reading else {
             defmt::error!("sample {=usize}: no reading", k);
             finish(false)
@@ -327,6 +344,11 @@ fn main() -> ! {
     if ok {
         defmt::info!("{=usize} readings bit-exact with the host", EXPECTED.len());
     }
+    defmt::info!(
+        "conversion per reading (BrixMeter::read), SysTick ticks: fewest {=u32}, most {=u32}",
+        fewest,
+        most
+    );
     defmt::info!(
         "RAM: meter object {=usize} B, stack high-water {=usize} B (whole run, frame buffer included)",
         core::mem::size_of::<BrixMeter<'static, Num>>(),
