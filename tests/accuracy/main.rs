@@ -56,6 +56,8 @@ fn all_rows() -> Vec<Row> {
         row::<reading::ThermistorTable>(),
         row::<reading::CellsApparentBrix>(),
         row::<reading::CellsNdOfBrix>(),
+        row::<reading::GridCorrectionOiv>(),
+        row::<reading::GridCorrectionJuice>(),
         row::<trade::SucroseTemperatureModel>(),
         row::<cal::LinearSampleCompensation>(),
         row::<cal::PrismIndex>(),

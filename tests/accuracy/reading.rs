@@ -13,6 +13,8 @@ use embedded_optics::media::water::Water;
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::calibration::water_reference;
+use embedded_optics::refractometer::compensation::SucroseCompensation;
+use embedded_optics::refractometer::reading::tables::{JUICE_LAB_GRID, OIV_GRID};
 use embedded_optics::refractometer::geometry::{Geometry, GeometryDescription};
 use embedded_optics::refractometer::prepare::{self, Prepared};
 use embedded_optics::refractometer::reading::brix_cells::{apparent_of_nd, nd_of_apparent};
@@ -130,4 +132,46 @@ case! {
     inputs: { span(0.0, 85.0, 851).map(|b| vec![b]).collect() },
     reference(x): { SucroseBrix.nd20_at(x[0]).ok() },
     eval(x): { nd_of_apparent(x[0]).map(|(n, _)| n).ok_or(Error::OutOfRange(Quantity::ScaleValue)) }
+}
+
+case! {
+    pub struct GridCorrectionOiv;
+    name: "refractometer::reading::prepared::CorrectionGrid::correction (OIV_GRID)",
+    unit: "%Brix",
+    domain: "4.5–40.5 °C × −2.5–87 %Brix read, every 0.25 K × 0.25 %Brix; against compensation::SucroseCompensation::oiv",
+    budget: Budget { f64: 2.0e-3, f32: 2.0e-3, i32f32: 2.0e-3, i8f24: 2.0e-3 },
+    inputs: {
+    let mut v = Vec::new();
+    for t in span(4.5, 40.5, 145) {
+        for b in span(-2.5, 87.0, 359) {
+            v.push(vec![t, b]);
+        }
+    }
+    v
+    },
+    reference(x): {
+    SucroseCompensation::oiv().correction(x[0], x[1]).ok().map(|c| c.correction)
+    },
+    eval(x): { OIV_GRID.correction(x[0], x[1]).map(|c| c.correction) }
+}
+
+case! {
+    pub struct GridCorrectionJuice;
+    name: "refractometer::reading::prepared::CorrectionGrid::correction (JUICE_LAB_GRID)",
+    unit: "%Brix",
+    domain: "4.5–40.5 °C × −2.5–87 %Brix read, every 0.25 K × 0.25 %Brix; against compensation::SucroseCompensation::juice_lab",
+    budget: Budget { f64: 2.0e-3, f32: 2.0e-3, i32f32: 2.0e-3, i8f24: 2.0e-3 },
+    inputs: {
+    let mut v = Vec::new();
+    for t in span(4.5, 40.5, 145) {
+        for b in span(-2.5, 87.0, 359) {
+            v.push(vec![t, b]);
+        }
+    }
+    v
+    },
+    reference(x): {
+    SucroseCompensation::juice_lab().correction(x[0], x[1]).ok().map(|c| c.correction)
+    },
+    eval(x): { JUICE_LAB_GRID.correction(x[0], x[1]).map(|c| c.correction) }
 }
