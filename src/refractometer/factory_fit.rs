@@ -235,6 +235,19 @@ impl<S: Scalar, const N: usize> FitReport<S, N> {
         dot(self.coefficients(), &g[..=self.degree])
     }
 
+    /// The fitted curve's slope at `position`, per unit of the abscissa:
+    /// `(c₁ + 2c₂u + 3c₃u²) / half_span`. An instrument propagates the
+    /// position's (or the raw index's) uncertainty through it.
+    pub fn slope_at(&self, position: S) -> Result<S, Error> {
+        let g = self.basis_at(position)?;
+        let mut per_u = S::ZERO;
+        for k in 1..=self.degree {
+            let weight = S::from_i32(i32::try_from(k).map_err(|_| Error::Overflow)?)?;
+            per_u = per_u.add(self.coefficients[k].mul(g[k - 1])?.mul(weight)?)?;
+        }
+        per_u.div(self.half_span)
+    }
+
     /// Standard uncertainty of the fitted curve at `position`, `√(gᵀCg)`
     /// (`None` when `N = p`): the spread of the curve from the standards'
     /// scatter, growing away from the standards' centre.
