@@ -11,7 +11,15 @@
 //! The uncertainty is propagated to first order (GUM, uncorrelated inputs) from
 //! the boundary position's noise (shrinking with the frames averaged), the
 //! temperature sensor's standard uncertainty (through the whole chain: prism
-//! index and sample compensation) and the calibration's standard uncertainty.
+//! index and sample compensation) and the calibration's standard uncertainty:
+//! the factory curve's own at the reading's index when one was fitted by
+//! least squares with degrees of freedom left, else the described constant.
+//!
+//! Calibration: either the factory curve ([`Instrument::calibrate_factory`]:
+//! 2 to 8 standards, a polynomial of degree 1 to 3 in the geometry's index,
+//! with residuals and pass/fail against an MPE) with field zeros and spans
+//! adjusting offset and gain on top of it, or zero, span and a third standard
+//! through [`Instrument::add_standard`] alone.
 //! Sensitivities come from the chain itself, in one pass: the geometry gives
 //! the index with its slopes per pixel and per unit of prism index, the
 //! calibration and dispersion their own slopes, and the sample compensation its
