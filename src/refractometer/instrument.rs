@@ -810,8 +810,8 @@ where
         let zero = self.standards[0].ok_or(missing)?;
         let new = self.sample_standard(avg, nd20, dispersion, compensation)?;
         let new = self.onto_factory(new)?;
-        let c = match (self.factory, self.standards[1]) {
-            (None, Some(span)) => calibration::three_standards(zero, span, new)?,
+        let c = match (self.factory.is_some(), self.standards[1]) {
+            (false, Some(span)) => calibration::three_standards(zero, span, new)?,
             _ => {
                 let c = calibration::zero_and_span(zero, new)?;
                 self.standards = [Some(zero), Some(new)];
