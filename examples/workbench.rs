@@ -12,6 +12,8 @@
 mod autofocus;
 #[path = "workbench/budget.rs"]
 mod budget;
+#[path = "workbench/end_of_line.rs"]
+mod end_of_line;
 #[path = "workbench/plots.rs"]
 mod plots;
 #[path = "workbench/report.rs"]

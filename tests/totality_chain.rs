@@ -10,11 +10,12 @@ use embedded_optics::refractometer::calibration::{self, Standard};
 use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
 use embedded_optics::refractometer::geometry::{Correction, Geometry, GeometryDescription};
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
+use embedded_optics::refractometer::verification::{CheckStandard, Nominal, verify};
 use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
-use support::inputs::any_float;
+use support::inputs::{any_float, finite};
 use support::*;
 
 /// Any float, the awkward ones (NaN, infinities, signed zero, extremes) often,
@@ -147,8 +148,148 @@ fn numbers_in<S: Scalar>(a: f64, b: f64, c: f64, d: f64) {
     {
         assert!(k.c1.is_finite() && k.c0.is_finite());
     }
+    if let Ok(k) = calibration::rezero(corr, s1) {
+        assert!(k.c0.is_finite() && k.c1 == corr.c1 && k.c2 == corr.c2);
+    }
+    for degree in [0, 1, 2, 3] {
+        for standards in [&[s1, s2][..], &[s1, s2, s3], &[s1, s2, s3, s1, s2]] {
+            let Ok(report) = calibration::fit_factory_curve(standards, degree, c) else {
+                continue;
+            };
+            assert!(report.coefficients().iter().all(|v| v.is_finite()));
+            assert!(report.residuals().iter().all(|v| v.is_finite()));
+            for at in [a, b, c, d] {
+                finite(report.value_at(at));
+                finite(report.slope_at(at));
+            }
+        }
+    }
     let _ = calibration::water_reference(&LinearWater, a, b);
     let _ = calibration::standard_reference(a, &LinearSample, &LinearSample, b, c);
+}
+
+/// The factory path: standards from arbitrary frames and numbers, a curve of
+/// any degree and MPE, field zero and span on top, readings and an
+/// end-of-line verification: typed errors or sane values.
+/// `frames` pairs each frame with the nD20 it shows (NaN: unknown).
+/// `extra` are standards as bare pairs (what a record or a host might hand
+/// over).
+fn factory_instrument_in<S: Scalar>(
+    frames: &[(Vec<u16>, f64)],
+    extra: &[(f64, f64)],
+    nums: &[f64],
+    degree: usize,
+) -> bool {
+    let Ok(mut inst) = Instrument::<S, _, _, _, _>::new(
+        &DESCRIPTION,
+        LinearGlass,
+        LinearSample,
+        LinearSample,
+        IndexScale,
+    ) else {
+        return false;
+    };
+    let s = |x: f64| S::from_f64(x).ok();
+    let Some(t) = s(nums[0]) else { return false };
+    let mut averages = Vec::new();
+    let mut standards = Vec::new();
+    for (f, nd20) in frames {
+        for _ in 0..DESCRIPTION.frames_per_reading {
+            if let Ok(Some(a)) = inst.feed(f, t) {
+                averages.push(a);
+                // A frame of unknown content stands for water.
+                let Some(nd20) = s(*nd20).filter(|_| nd20.is_finite()) else {
+                    if let Ok(st) = inst.water_standard(&a, &LinearWater) {
+                        standards.push(st);
+                    }
+                    continue;
+                };
+                if let Ok(st) = inst.sample_standard(&a, nd20, &LinearSample, &LinearSample) {
+                    standards.push(st);
+                }
+            }
+        }
+    }
+    for &(measured, reference) in extra {
+        if let (Some(measured), Some(reference)) = (s(measured), s(reference)) {
+            standards.push(Standard {
+                measured,
+                reference,
+            });
+        }
+    }
+    let Some(mpe) = s(nums[1]) else { return false };
+    let before = inst.correction();
+    let fitted = match inst.calibrate_factory(&standards, degree, mpe) {
+        Ok(report) => {
+            assert!(report.residuals().iter().all(|v| v.is_finite()));
+            assert!(inst.factory_fit().is_some());
+            true
+        }
+        Err(_) => {
+            assert!(inst.factory_fit().is_none() && inst.correction() == before);
+            false
+        }
+    };
+    for a in &averages {
+        let _ = inst.zero_with_water(a, &LinearWater);
+        if let Some(nd20) = s(nums[2]) {
+            let _ = inst.add_standard(a, nd20, &LinearSample, &LinearSample);
+        }
+        if let Ok(r) = inst.read(a) {
+            assert!((1.0..=4.5).contains(&r.nd20.to_f64()));
+            assert!(r.uncertainty >= S::ZERO && r.uncertainty.is_finite());
+        }
+    }
+    let checks: Vec<CheckStandard<S>> = averages
+        .iter()
+        .zip(nums.chunks_exact(2))
+        .filter_map(|(a, pair)| {
+            let (v, mpe) = (s(pair[0])?, s(pair[1])?);
+            let nominal = if pair[0] > 1.0 {
+                Nominal::Nd20(v)
+            } else {
+                Nominal::Scale(v)
+            };
+            Some(CheckStandard {
+                averaged: *a,
+                nominal,
+                mpe,
+            })
+        })
+        .collect();
+    if let Ok(v) = verify(&mut inst, &checks) {
+        assert_eq!(v.len(), checks.len());
+        for c in v.checks() {
+            if let Some(d) = c.deviation {
+                assert!(d.is_finite());
+            }
+            assert!(!c.within_mpe || c.deviation.is_some());
+        }
+    }
+    inst.remove_factory_fit();
+    assert!(inst.factory_fit().is_none());
+    fitted
+}
+
+/// The property below reaches the working path: real frames of four samples
+/// fit a curve in every type.
+#[test]
+fn factory_path_is_reached() {
+    let frames: Vec<(Vec<u16>, f64)> = [1.34, 1.38, 1.42, 1.48]
+        .iter()
+        .map(|&nd20| {
+            (
+                frame(sample_at_led(nd20, 20.0), 20.0, 0.0, &mut Rng::new(3)),
+                nd20,
+            )
+        })
+        .collect();
+    let nums = [20.0, 5e-5, 1.38, 1.3401, 2e-4];
+    assert!(factory_instrument_in::<f64>(&frames, &[], &nums, 2));
+    assert!(factory_instrument_in::<f32>(&frames, &[], &nums, 2));
+    assert!(factory_instrument_in::<I32F32>(&frames, &[], &nums, 2));
+    assert!(factory_instrument_in::<I8F24>(&frames, &[], &nums, 1));
 }
 
 fn instrument_desc() -> impl Strategy<Value = InstrumentDescription> {
@@ -269,6 +410,29 @@ proptest! {
         instrument_in::<f64>(&d, &f, t);
         instrument_in::<I32F32>(&d, &f, t);
         instrument_in::<I8F24>(&d, &f, t);
+    }
+
+    #[test]
+    fn factory_calibration_and_verification_are_total(
+        sample in proptest::collection::vec(1.30f64..1.55, 0..5),
+        f in frame_u16(),
+        nums in proptest::collection::vec(prop_oneof![any_f64(), 1.3f64..1.55, 1e-6f64..1e-3], 3..12),
+        degree in 0usize..5,
+        extra in proptest::collection::vec((any_f64(), any_f64()), 0..3),
+    ) {
+        // Real frames of the design at 20 °C (nD20 `sample`, through the
+        // sample double's inverse) and one arbitrary.
+        let mut frames: Vec<(Vec<u16>, f64)> = sample
+            .iter()
+            .map(|&nd20| (frame(sample_at_led(nd20, 20.0), 20.0, 0.0, &mut Rng::new(3)), nd20))
+            .collect();
+        frames.push((f, f64::NAN));
+        let mut nums = nums;
+        nums[0] = if nums[0].is_finite() && nums.len() % 2 == 0 { 20.0 } else { nums[0] };
+        factory_instrument_in::<f64>(&frames, &extra, &nums, degree);
+        factory_instrument_in::<f32>(&frames, &extra, &nums, degree);
+        factory_instrument_in::<I32F32>(&frames, &extra, &nums, degree);
+        factory_instrument_in::<I8F24>(&frames, &extra, &nums, degree);
     }
 
     #[test]

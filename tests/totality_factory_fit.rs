@@ -49,6 +49,7 @@ fn fit_is_total<S: Scalar>(standards: &[(f64, f64)], degree: usize, mpe: f64, at
     assert_eq!(report.residuals().len(), points.len());
     assert_eq!(report.within_mpe().len(), points.len());
     finite(report.value_at(at));
+    finite(report.slope_at(at));
     finite(report.uncertainty_at(at).map(|u| u.unwrap_or(S::ZERO)));
     for k in 0..=MAX_DEGREE {
         finite(report.coefficient_sd(k).map(|u| u.unwrap_or(S::ZERO)));

@@ -4,6 +4,8 @@
 
 #[path = "../examples/workbench/budget.rs"]
 mod budget;
+#[path = "../examples/workbench/end_of_line.rs"]
+mod end_of_line;
 #[path = "../examples/workbench/plots.rs"]
 mod plots;
 #[path = "../examples/workbench/scenario.rs"]
@@ -31,6 +33,73 @@ fn small(sample_nd20: f64) -> scenario::Scenario {
     sc.samples[0].scale_value = None;
     sc.samples[0].nd20 = Some(sample_nd20);
     sc
+}
+
+/// End-of-line yield on the small design: units without any tolerance all
+/// pass checks within 5e-5 nD of water (nD20 1.33299, common practice) and of
+/// a 1.36 standard; with the study's tolerances the same seed gives the same
+/// yield, and an MPE no unit can meet (1e-7 nD) fails every unit. Checks
+/// read through `refractometer::verification`.
+#[test]
+fn end_of_line_yield() {
+    let mut sc = small(1.36);
+    let eol = scenario::EndOfLine {
+        units: 6,
+        checks: vec![
+            scenario::CheckSpec {
+                name: "water".into(),
+                nd20: Some(1.33299),
+                scale_value: None,
+                mpe: 5e-5,
+                water: true,
+            },
+            scenario::CheckSpec {
+                name: "1.36".into(),
+                nd20: Some(1.36),
+                scale_value: None,
+                mpe: 5e-5,
+                water: false,
+            },
+        ],
+    };
+    let d = sim::description(
+        &sc,
+        sc.thermistor.tolerance_c,
+        sc.calibration.standard_uncertainty,
+    );
+    let a = end_of_line::run(&sc, &eol, &d).unwrap();
+    let b = end_of_line::run(&sc, &eol, &d).unwrap();
+    println!("with tolerances: {a:?}");
+    assert_eq!(a, b);
+    assert_eq!(a.failures.len(), 2);
+    // Each failing unit failed at least one check; no check failed on more
+    // units than failed.
+    let failed_units = a.units - a.passed;
+    assert!(failed_units <= a.failures.iter().sum::<usize>());
+    assert!(a.failures.iter().all(|&f| f <= failed_units));
+    let impossible = scenario::EndOfLine {
+        checks: eol
+            .checks
+            .iter()
+            .map(|c| scenario::CheckSpec {
+                mpe: 1e-7,
+                ..c.clone()
+            })
+            .collect(),
+        ..eol.clone()
+    };
+    assert_eq!(end_of_line::run(&sc, &impossible, &d).unwrap().passed, 0);
+    sc.study.tolerances = scenario::Tolerances {
+        pixel_noise: false,
+        led_drift_nm: 0.0,
+        prism_angle_deg: 0.0,
+        focal_length_mm: 0.0,
+    };
+    sc.thermistor.tolerance_c = 0.0;
+    sc.calibration.standard_uncertainty = 0.0;
+    let ideal = end_of_line::run(&sc, &eol, &d).unwrap();
+    println!("no tolerances: {ideal:?}");
+    assert_eq!(ideal.passed, ideal.units);
 }
 
 #[test]

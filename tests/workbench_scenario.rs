@@ -136,3 +136,21 @@ fn every_scale_name_parses_and_an_unknown_one_lists_them() {
         "{e}"
     );
 }
+
+/// The juice line's end-of-line section parses; a check with both a nominal
+/// nD20 and a scale value, or none, is refused naming the field.
+#[test]
+fn end_of_line_section() {
+    let s = scenario::parse(JUICE, "juice").unwrap();
+    let eol = s.end_of_line.expect("the juice line verifies its units");
+    assert_eq!(eol.checks.len(), 3);
+    assert!(eol.checks[0].water && eol.checks[0].nd20 == Some(1.33299));
+    let both = JUICE.replace("scale_value = 40.0", "scale_value = 40.0\nnd20 = 1.39986");
+    assert!(
+        error_of(&both).contains("end_of_line.checks"),
+        "{}",
+        error_of(&both)
+    );
+    let no_mpe = JUICE.replace("mpe = 5.0e-5", "mpe = 0.0");
+    assert!(error_of(&no_mpe).contains("end_of_line.checks.mpe"));
+}

@@ -73,6 +73,10 @@ pub fn run(sc: &Scenario, out: Option<&Path>) -> Result<(), Box<dyn std::error::
     let b = budget::budget(sc, &|| bar.inc(1))?;
     bar.finish_and_clear();
     print_budget(sc, &b, unit);
+    if let Some(eol) = &sc.end_of_line {
+        let y = crate::end_of_line::run(sc, eol, &d)?;
+        crate::end_of_line::print(sc, eol, &y);
+    }
 
     if let Some(dir) = out {
         std::fs::create_dir_all(dir)?;

@@ -33,6 +33,41 @@ pub struct Scenario {
     pub samples: Vec<SampleSpec>,
     /// What to run.
     pub study: Study,
+    /// End-of-line verification of simulated units (optional).
+    #[serde(default)]
+    pub end_of_line: Option<EndOfLine>,
+}
+
+/// End-of-line verification: every simulated unit, built and calibrated with
+/// the study's tolerances, reads these check standards at the calibration
+/// temperature; a unit ships when each is within its MPE.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct EndOfLine {
+    /// Units simulated.
+    pub units: usize,
+    /// The check standards.
+    pub checks: Vec<CheckSpec>,
+}
+
+/// One check standard: nominal nD at 20 °C or scale value, and its MPE in
+/// the same unit.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CheckSpec {
+    /// Name for the table.
+    pub name: String,
+    /// Nominal nD at 20 °C (MPE in nD).
+    #[serde(default)]
+    pub nd20: Option<f64>,
+    /// Nominal scale value (MPE in the scale's unit), instead of `nd20`.
+    #[serde(default)]
+    pub scale_value: Option<f64>,
+    /// Maximum permissible error.
+    pub mpe: f64,
+    /// Distilled water (rendered from the water model, not the sample model).
+    #[serde(default)]
+    pub water: bool,
 }
 
 /// Prism glass and apex angle.
@@ -235,6 +270,19 @@ impl Scenario {
                 "instrument",
                 &format!("\"{kind}\" is not one of \"refractometer\", \"autofocus\""),
             ));
+        }
+        if let Some(e) = &self.end_of_line {
+            within("end_of_line.units", e.units as f64, 1.0, 10_000.0)?;
+            within("end_of_line.checks", e.checks.len() as f64, 1.0, 8.0)?;
+            for c in &e.checks {
+                within("end_of_line.checks.mpe", c.mpe, 1e-7, 100.0)?;
+                if c.nd20.is_some() == c.scale_value.is_some() {
+                    return Err(bad(
+                        "end_of_line.checks",
+                        &format!("`{}` needs exactly one of nd20, scale_value", c.name),
+                    ));
+                }
+            }
         }
         within("prism.glass_nd", self.prism.glass_nd, 1.4, 2.2)?;
         within("prism.glass_vd", self.prism.glass_vd, 15.0, 100.0)?;

@@ -477,6 +477,18 @@ impl<'a> Bench<'a> {
         })
     }
 
+    /// The averages (f64 and I32F32 chains) of `target` at true
+    /// temperature `t`, unread.
+    pub fn averaged(
+        &mut self,
+        target: Target,
+        t: f64,
+    ) -> Result<(Averaged<f64>, Averaged<I32F32>), Error> {
+        let mut last = Vec::new();
+        self.world
+            .averages(target, t, &mut self.f64_chain, &mut self.fixed, &mut last)
+    }
+
     /// Reads a sample of true nD20 `nd20` at true temperature `t`.
     pub fn read(&mut self, nd20: f64, t: f64) -> Result<Outcome, Error> {
         let mut last = Vec::new();

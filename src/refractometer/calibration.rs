@@ -17,6 +17,7 @@ use crate::error::{Error, Quantity};
 use crate::media::air;
 use crate::media::{IndexReference, Medium};
 use crate::optics::refraction::check_index;
+use crate::refractometer::factory_fit::{self, FitPoint, FitReport, MAX_STANDARDS};
 use crate::refractometer::geometry::Correction;
 use crate::refractometer::{SampleCompensation, WavelengthCorrection};
 use crate::scalar::Scalar;
@@ -138,6 +139,87 @@ pub fn zero<S: Scalar>(water: Standard<S>) -> Result<Correction<S>, Error> {
         c1: S::ONE,
         c2: S::ZERO,
     })
+}
+
+/// A water zero on top of a correction already in use: moves its offset so
+/// that the standard reads true and keeps its slope and curvature (the gain a
+/// factory or a span found). The trade's field zero; [`zero`] instead starts
+/// again from an offset alone.
+///
+/// ```
+/// use embedded_optics::refractometer::calibration::{rezero, Standard};
+/// use embedded_optics::refractometer::geometry::Correction;
+/// let gain = Correction { c0: -0.01f64, c1: 1.0075, c2: 0.0 };
+/// // Water read 1.33320 through it for 1.33290.
+/// let c = rezero(gain, Standard { measured: 1.3332, reference: 1.3329 }).unwrap();
+/// assert!((c.apply(1.3332).unwrap() - 1.3329).abs() < 1e-12);
+/// assert_eq!((c.c1, c.c2), (gain.c1, gain.c2));
+/// ```
+pub fn rezero<S: Scalar>(
+    correction: Correction<S>,
+    water: Standard<S>,
+) -> Result<Correction<S>, Error> {
+    let (m, r) = water.checked()?;
+    let shift = r.sub(correction.apply(m)?)?;
+    if shift.abs()? > crate::lit!(S, 0.01) {
+        return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+    }
+    Ok(Correction {
+        c0: correction.c0.add(shift)?,
+        ..correction
+    })
+}
+
+/// The factory curve: a least-squares polynomial of `degree` (1 to 3) from
+/// the geometry's uncorrected index to the standards' true index at the LED,
+/// through [`factory_fit::fit`], with each residual checked against `mpe`
+/// (nD). 2 to [`MAX_STANDARDS`] standards.
+///
+/// The abscissa is the geometry's index, not the boundary position: the
+/// geometry already carries the prism's temperature, so one curve serves at
+/// every temperature, and the curve is a small correction near the identity,
+/// as [`Correction`] is. Refused like the other corrections: a standard read
+/// more than 0.01 from its value, or a curve whose slope at any standard is
+/// off 1 by more than 10 % (`OutOfRange(RefractiveIndex)`); and as
+/// [`factory_fit::fit`] refuses (degree, count, MPE, repeated readings).
+///
+/// ```
+/// use embedded_optics::refractometer::calibration::{fit_factory_curve, Standard};
+/// // Five standards read 4e-4 high and 0.6 % steep (invented unit).
+/// let pairs = [1.333f64, 1.36, 1.40, 1.45, 1.50].map(|r| Standard {
+///     measured: 1.333 + (r - 1.333) * 1.006 + 4e-4, reference: r });
+/// let report = fit_factory_curve(&pairs, 2, 2e-5).unwrap();
+/// assert!(report.all_within_mpe());
+/// assert!((report.value_at(pairs[2].measured).unwrap() - 1.40).abs() < 1e-9);
+/// ```
+pub fn fit_factory_curve<S: Scalar>(
+    standards: &[Standard<S>],
+    degree: usize,
+    mpe: S,
+) -> Result<FitReport<S>, Error> {
+    if standards.len() > MAX_STANDARDS {
+        return Err(Error::OutOfRange(Quantity::StandardCount));
+    }
+    let mut points = [FitPoint {
+        position: S::ZERO,
+        value: S::ZERO,
+    }; MAX_STANDARDS];
+    for (point, standard) in points.iter_mut().zip(standards) {
+        let (measured, reference) = standard.checked()?;
+        *point = FitPoint {
+            position: measured,
+            value: reference,
+        };
+    }
+    let points = points.get(..standards.len()).unwrap_or(&[]);
+    let report: FitReport<S> = factory_fit::fit(points, degree, mpe)?;
+    for p in points {
+        let slope = report.slope_at(p.position)?;
+        if slope < crate::lit!(S, 0.9) || slope > crate::lit!(S, 1.1) {
+            return Err(Error::OutOfRange(Quantity::RefractiveIndex));
+        }
+    }
+    Ok(report)
 }
 
 /// Offset and scale from two standards (water zero and a span standard at least

@@ -205,7 +205,11 @@ impl<S: Scalar, const N: usize> FitReport<S, N> {
 
     /// Coefficients of `1, u, u², …` up to the degree, `u = (x − centre) / half_span`.
     pub fn coefficients(&self) -> &[S] {
-        &self.coefficients[..=self.degree]
+        // `get`: no panic path for a firmware's no-panic link (the degree is
+        // 1 to 3 by construction).
+        self.coefficients
+            .get(..=self.degree)
+            .unwrap_or(&self.coefficients)
     }
 
     /// `value − curve(position)` of each standard, in the order given.
@@ -232,7 +236,22 @@ impl<S: Scalar, const N: usize> FitReport<S, N> {
     /// The fitted curve at `position`.
     pub fn value_at(&self, position: S) -> Result<S, Error> {
         let g = self.basis_at(position)?;
-        dot(self.coefficients(), &g[..=self.degree])
+        // `dot` stops at the shorter: the coefficients up to the degree.
+        dot(self.coefficients(), &g)
+    }
+
+    /// The fitted curve's slope at `position`, per unit of the abscissa:
+    /// `(c₁ + 2c₂u + 3c₃u²) / half_span`. An instrument propagates the
+    /// position's (or the raw index's) uncertainty through it.
+    pub fn slope_at(&self, position: S) -> Result<S, Error> {
+        let g = self.basis_at(position)?;
+        // Σ k·c_k·u^(k−1): coefficient k beside power k − 1.
+        let (mut per_u, mut k) = (S::ZERO, S::ZERO);
+        for (c, power) in self.coefficients().iter().skip(1).zip(g) {
+            k = k.add(S::ONE)?;
+            per_u = per_u.add(c.mul(power)?.mul(k)?)?;
+        }
+        per_u.div(self.half_span)
     }
 
     /// Standard uncertainty of the fitted curve at `position`, `√(gᵀCg)`
@@ -243,13 +262,16 @@ impl<S: Scalar, const N: usize> FitReport<S, N> {
             return Ok(None);
         };
         let g = self.basis_at(position)?;
+        // w_j = Σ_i (s·R⁻¹)_ij·g_i, row by row: R⁻¹ is upper triangular and
+        // zero above the degree, as g is, so the zeros add nothing (and the
+        // loop has no index a firmware's no-panic link must prove).
         let mut w = [S::ZERO; MAX_TERMS];
-        for (j, wj) in w.iter_mut().enumerate().take(self.degree + 1) {
-            for (row, &gi) in rows.iter().zip(&g).take(j + 1) {
-                *wj = wj.add(row[j].mul(gi)?)?;
+        for (row, gi) in rows.iter().zip(g) {
+            for (wj, rij) in w.iter_mut().zip(row) {
+                *wj = wj.add(rij.mul(gi)?)?;
             }
         }
-        norm(&w[..=self.degree]).map(Some)
+        norm(&w).map(Some)
     }
 
     /// Standard deviation of coefficient `k` of the scaled basis (`None` when
@@ -384,9 +406,12 @@ fn span_of<S: Scalar>(standards: &[FitPoint<S>]) -> Result<(S, S), Error> {
 fn basis<S: Scalar>(x: S, centre: S, half_span: S, degree: usize) -> Result<[S; MAX_TERMS], Error> {
     let u = x.sub(centre)?.div(half_span)?;
     let mut g = [S::ZERO; MAX_TERMS];
-    g[0] = S::ONE;
-    for k in 1..=degree {
-        g[k] = g[k - 1].mul(u)?;
+    let mut power = S::ONE;
+    for (k, gk) in g.iter_mut().enumerate().take(degree.saturating_add(1)) {
+        if k > 0 {
+            power = power.mul(u)?;
+        }
+        *gk = power;
     }
     Ok(g)
 }

@@ -11,7 +11,15 @@
 //! The uncertainty is propagated to first order (GUM, uncorrelated inputs) from
 //! the boundary position's noise (shrinking with the frames averaged), the
 //! temperature sensor's standard uncertainty (through the whole chain: prism
-//! index and sample compensation) and the calibration's standard uncertainty.
+//! index and sample compensation) and the calibration's standard uncertainty:
+//! the factory curve's own at the reading's index when one was fitted by
+//! least squares with degrees of freedom left, else the described constant.
+//!
+//! Calibration: either the factory curve ([`Instrument::calibrate_factory`]:
+//! 2 to 8 standards, a polynomial of degree 1 to 3 in the geometry's index,
+//! with residuals and pass/fail against an MPE) with field zeros and spans
+//! adjusting offset and gain on top of it, or zero, span and a third standard
+//! through [`Instrument::add_standard`] alone.
 //! Sensitivities come from the chain itself, in one pass: the geometry gives
 //! the index with its slopes per pixel and per unit of prism index, the
 //! calibration and dispersion their own slopes, and the sample compensation its
@@ -145,6 +153,7 @@ use crate::media::Medium;
 use crate::optics::refraction::check_index;
 use crate::refractometer::boundary::{Boundary, BoundaryConfig, SUBPIXEL, find_boundary};
 use crate::refractometer::calibration::{self, Standard};
+use crate::refractometer::factory_fit::FitReport;
 use crate::refractometer::geometry::{
     Correction, Geometry, GeometryDescription, IndexAtPosition, check_described,
 };
@@ -255,7 +264,12 @@ pub struct Instrument<S, P, W, C, T> {
     dispersion_ratio: Option<S>,
     compensation: C,
     scale: T,
+    /// The calibration correction; with a factory curve, the field
+    /// adjustment applied to the curve's output.
     correction: Correction<S>,
+    /// The factory curve from the geometry's index to the index at the LED
+    /// (least squares over the factory's standards), when one was fitted.
+    factory: Option<FitReport<S>>,
     /// Temperature of the last water zero (or of the restored record), °C.
     zero_temperature: S,
     /// Standards read since the last water zero (zero, span).
@@ -348,6 +362,7 @@ where
             compensation,
             scale,
             correction: Correction::identity(),
+            factory: None,
             zero_temperature: crate::lit!(S, 20.0),
             standards: [None, None],
             frames: d.frames_per_reading,
@@ -374,19 +389,24 @@ where
         })
     }
 
-    /// The calibration correction in use.
+    /// The calibration correction in use. With a factory curve
+    /// ([`Self::calibrate_factory`]) it is the field adjustment applied to
+    /// the curve's output (identity until a field zero or span).
     pub fn correction(&self) -> Correction<S> {
         self.correction
     }
 
-    /// Sets a correction (e.g. one read back from the calibration record).
+    /// Sets a correction (e.g. one read back from the calibration record);
+    /// with a factory curve, the field adjustment on top of it.
     pub fn set_correction(&mut self, c: Correction<S>) {
         self.correction = c;
     }
 
     /// The record to write after a calibration, to `choice.write_to` (see
     /// [`record`](super::record)): the next sequence number, this instrument's
-    /// correction, the water zero's temperature and the LED wavelength.
+    /// correction, the water zero's temperature and the LED wavelength. With a
+    /// factory curve the correction is the field adjustment: the curve itself
+    /// is not in this record.
     /// Integer arithmetic only for fixed-point `S`.
     pub fn calibration_record(&self, choice: &SlotChoice) -> Result<CalibrationRecord, Error> {
         let mut record = choice
@@ -403,7 +423,8 @@ where
     /// (`OutOfRange(Wavelength)`), and coefficients no calibration would have
     /// made, moving water's index by more than 0.01 or scaling it by more than
     /// 10 % (`OutOfRange(RefractiveIndex)`). Standards read before are
-    /// forgotten: a new span needs a new zero.
+    /// forgotten: a new span needs a new zero. With a factory curve the record
+    /// restores the field adjustment on top of it.
     pub fn restore(&mut self, record: &CalibrationRecord) -> Result<Correction<S>, Error> {
         if record.led_wavelength_pm != self.led_pm {
             return Err(Error::OutOfRange(Quantity::Wavelength));
@@ -653,7 +674,7 @@ where
         let t = avg.temperature_c;
         let (at, prism_per_kelvin) = self.raw_index_near(avg.position, t)?;
         let raw = at.index;
-        let index_at_led = self.correction.apply(raw)?;
+        let (index_at_led, correction_slope, u_fit) = self.corrected(raw)?;
         let (nd, nd_per_led) = self.to_nd(index_at_led)?;
         let compensated = self.compensation.compensate_prepared(nd, t)?;
         let nd20 = check_index(compensated.nd20)?;
@@ -669,10 +690,8 @@ where
         // Sensitivities of nD20, first order: per unit of the uncorrected
         // index, then per pixel and per kelvin (the prism through the
         // geometry, and the sample's own compensation).
-        let per_raw = compensated
-            .per_nd
-            .mul(nd_per_led)?
-            .mul(self.correction.slope(raw)?)?;
+        let per_led = compensated.per_nd.mul(nd_per_led)?;
+        let per_raw = per_led.mul(correction_slope)?;
         const _: () = assert!(SUBPIXEL == 1 << 16);
         let u_px = S::from_ratio_pow2(avg.position_uncertainty, 16)?;
         let term_px = per_raw.mul(at.per_pixel)?.mul(u_px)?.abs()?;
@@ -681,13 +700,14 @@ where
             .mul(prism_per_kelvin)?
             .add(compensated.per_kelvin)?;
         let term_t = per_kelvin.mul(self.u_temperature)?.abs()?;
+        // The factory curve's own uncertainty where the reading falls, when
+        // its standards left degrees of freedom; else the described constant.
+        let term_cal = match u_fit {
+            Some(u) => per_led.mul(u)?.abs()?,
+            None => self.u_calibration,
+        };
         let compensation = compensated.note;
-        let uncertainty = root_sum_square([
-            term_px,
-            term_t,
-            self.u_calibration,
-            compensation.uncertainty,
-        ])?;
+        let uncertainty = root_sum_square([term_px, term_t, term_cal, compensation.uncertainty])?;
 
         let stable = self.settle(nd20, t)?;
         Ok(Reading {
@@ -727,20 +747,23 @@ where
     }
 
     /// Zero with distilled water: pairs the average's uncorrected index with the
-    /// water model's index at the LED wavelength and the average's temperature,
-    /// and sets an offset correction. Remembered for a following span.
+    /// water model's index at the LED wavelength and the average's temperature.
+    /// Without a factory curve it sets an offset correction (any slope or
+    /// curvature found before is dropped; a span follows). With one
+    /// ([`Self::calibrate_factory`]) it is a field zero: the field
+    /// adjustment's offset moves so that water reads true, its gain stays
+    /// and the factory curve stays. Remembered for a following span.
     pub fn zero_with_water<M: Medium<S> + ?Sized>(
         &mut self,
         avg: &Averaged<S>,
         water: &M,
     ) -> Result<Correction<S>, Error> {
-        let measured = self.raw_index(avg.position, avg.temperature_c)?.0.index;
-        let reference = calibration::water_reference(water, self.wavelength, avg.temperature_c)?;
-        let standard = Standard {
-            measured,
-            reference,
+        let standard = self.water_standard(avg, water)?;
+        let standard = self.onto_factory(standard)?;
+        let c = match self.factory {
+            Some(_) => calibration::rezero(self.correction, standard)?,
+            None => calibration::zero(standard)?,
         };
-        let c = calibration::zero(standard)?;
         self.standards = [Some(standard), None];
         self.correction = c;
         self.zero_temperature = avg.temperature_c;
@@ -750,10 +773,11 @@ where
     /// A standard of known nD at 20 °C after [`Self::zero_with_water`], brought
     /// to the LED wavelength and the average's temperature through the
     /// standard's own dispersion and temperature models. The first standard after
-    /// a zero is the span: an offset-and-scale correction. The next one sets the
-    /// quadratic through all three (factory calibration over a wide range); each
-    /// further one replaces that third. Without a zero first:
-    /// `OutOfRange(RefractiveIndex)`.
+    /// a zero is the span: an offset-and-scale correction. Without a factory
+    /// curve, the next one sets the quadratic through all three and each
+    /// further one replaces that third; with one, each further standard
+    /// replaces the span (offset and gain on top of the curve, which stays).
+    /// Without a zero first: `OutOfRange(RefractiveIndex)`.
     pub fn add_standard<W2, C2>(
         &mut self,
         avg: &Averaged<S>,
@@ -767,6 +791,51 @@ where
     {
         let missing = Error::OutOfRange(Quantity::RefractiveIndex);
         let zero = self.standards[0].ok_or(missing)?;
+        let new = self.sample_standard(avg, nd20, dispersion, compensation)?;
+        let new = self.onto_factory(new)?;
+        let c = match (self.factory.is_some(), self.standards[1]) {
+            (false, Some(span)) => calibration::three_standards(zero, span, new)?,
+            _ => {
+                let c = calibration::zero_and_span(zero, new)?;
+                self.standards = [Some(zero), Some(new)];
+                c
+            }
+        };
+        self.correction = c;
+        Ok(c)
+    }
+
+    /// Distilled water on the prism as a calibration standard: the average's
+    /// uncorrected index paired with the water model's index at the LED
+    /// wavelength and the average's temperature. Changes nothing.
+    pub fn water_standard<M: Medium<S> + ?Sized>(
+        &mut self,
+        avg: &Averaged<S>,
+        water: &M,
+    ) -> Result<Standard<S>, Error> {
+        let measured = self.raw_index(avg.position, avg.temperature_c)?.0.index;
+        let reference = calibration::water_reference(water, self.wavelength, avg.temperature_c)?;
+        Ok(Standard {
+            measured,
+            reference,
+        })
+    }
+
+    /// A standard of known nD at 20 °C as a calibration standard: the
+    /// average's uncorrected index paired with the standard's index at the
+    /// LED wavelength and the average's temperature, through the standard's
+    /// own dispersion and temperature models. Changes nothing.
+    pub fn sample_standard<W2, C2>(
+        &mut self,
+        avg: &Averaged<S>,
+        nd20: S,
+        dispersion: &W2,
+        compensation: &C2,
+    ) -> Result<Standard<S>, Error>
+    where
+        W2: WavelengthCorrection<S> + ?Sized,
+        C2: SampleCompensation<S> + ?Sized,
+    {
         let measured = self.raw_index(avg.position, avg.temperature_c)?.0.index;
         let reference = calibration::standard_reference(
             nd20,
@@ -775,20 +844,87 @@ where
             self.wavelength,
             avg.temperature_c,
         )?;
-        let new = Standard {
+        Ok(Standard {
             measured,
             reference,
+        })
+    }
+
+    /// Factory calibration: fits the factory curve (degree 1 to 3) through 2
+    /// to 8 standards (from [`Self::water_standard`] and
+    /// [`Self::sample_standard`]) by least squares
+    /// ([`calibration::fit_factory_curve`]), installs it with an identity
+    /// field adjustment, and returns the report: residuals, residual
+    /// standard deviation, covariance and each standard against `mpe` (nD).
+    ///
+    /// The curve is installed whatever the residuals: the caller reads
+    /// [`FitReport::all_within_mpe`] and rejects the unit (or refits)
+    /// before it ships. From then on a reading's calibration uncertainty is
+    /// the curve's own at the reading's index
+    /// ([`FitReport::uncertainty_at`]) when the standards left degrees of
+    /// freedom (more standards than coefficients), else the described
+    /// constant; the standards' certified uncertainty is not in it. Field
+    /// zeros and spans adjust offset and gain on top of the curve. On
+    /// failure the instrument is unchanged.
+    pub fn calibrate_factory(
+        &mut self,
+        standards: &[Standard<S>],
+        degree: usize,
+        mpe: S,
+    ) -> Result<FitReport<S>, Error> {
+        let report = calibration::fit_factory_curve(standards, degree, mpe)?;
+        self.factory = Some(report);
+        self.correction = Correction::identity();
+        self.standards = [None, None];
+        Ok(report)
+    }
+
+    /// The factory curve in use, if any.
+    pub fn factory_fit(&self) -> Option<&FitReport<S>> {
+        self.factory.as_ref()
+    }
+
+    /// Drops the factory curve (the correction then applies to the
+    /// geometry's index directly, as before any factory calibration);
+    /// standards read before are forgotten.
+    pub fn remove_factory_fit(&mut self) {
+        self.factory = None;
+        self.standards = [None, None];
+    }
+
+    /// A standard's reading taken through the factory curve (unchanged
+    /// without one): what the field adjustment is fitted to.
+    fn onto_factory(&self, standard: Standard<S>) -> Result<Standard<S>, Error> {
+        let Some(fit) = &self.factory else {
+            return Ok(standard);
         };
-        let c = match self.standards[1] {
-            Some(span) => calibration::three_standards(zero, span, new)?,
-            None => {
-                let c = calibration::zero_and_span(zero, new)?;
-                self.standards = [Some(zero), Some(new)];
-                c
-            }
+        Ok(Standard {
+            measured: check_index(fit.value_at(check_index(standard.measured)?)?)?,
+            ..standard
+        })
+    }
+
+    /// The index at the LED from the geometry's index: through the factory
+    /// curve (when fitted) and the correction. With its slope per unit of the
+    /// geometry's index, and the curve's standard uncertainty there carried
+    /// through the correction (`None` without a curve, or with one whose
+    /// standards left no degree of freedom).
+    fn corrected(&self, raw: S) -> Result<(S, S, Option<S>), Error> {
+        let Some(fit) = &self.factory else {
+            return Ok((
+                self.correction.apply(raw)?,
+                self.correction.slope(raw)?,
+                None,
+            ));
         };
-        self.correction = c;
-        Ok(c)
+        let on_curve = check_index(fit.value_at(raw)?)?;
+        let field_slope = self.correction.slope(on_curve)?;
+        let slope = field_slope.mul(fit.slope_at(raw)?)?;
+        let u = match fit.uncertainty_at(raw)? {
+            Some(u) => Some(u.mul(field_slope)?),
+            None => None,
+        };
+        Ok((self.correction.apply(on_curve)?, slope, u))
     }
 }
 

@@ -189,6 +189,7 @@ pub mod syrup;
 pub mod table;
 pub mod thermistor;
 pub mod urea;
+pub mod verification;
 pub mod wine;
 
 // The reading side's modules at the paths they have always had.

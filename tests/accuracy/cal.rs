@@ -4,6 +4,7 @@
 //! the rest), sharing no code with the routines.
 
 use crate::harness::{Budget, Case, span};
+use embedded_optics::refractometer::calibration::{Standard, rezero};
 use embedded_optics::refractometer::compensation::{
     LinearCompensation, PrismTemperature, SucroseCompensation,
 };
@@ -503,6 +504,43 @@ case! {
         t0_c: S::from_i32(25)?,
     }
     .temperature_c(x[0])
+    }
+}
+
+case! {
+    pub struct FieldRezero;
+    name: "refractometer::calibration::rezero (then Correction::apply)",
+    unit: "1 (index)",
+    domain: "water read 1.3320–1.3340 for 1.33299; corrections within 5e-3 of identity at 1.42 (c1 0.995–1.005, c2 ±5e-4); n 1.33–1.51",
+    budget: Budget { f64: 1e-15, f32: 5e-7, i32f32: 1e-9, i8f24: 3e-7 },
+    inputs: {
+    let mut v = Vec::new();
+    for m in span(1.3320, 1.3340, 5) {
+        for offset in span(-0.005, 0.005, 3) {
+            for c1 in span(0.995, 1.005, 3) {
+                for c2 in span(-5e-4, 5e-4, 3) {
+                    // c0 such that the correction moves 1.42 by `offset`.
+                    let c0 = offset - (c1 - 1.0) * 1.42 - c2 * 1.42 * 1.42;
+                    for n in span(1.33, 1.51, 10) {
+                        v.push(vec![m, c0, c1, c2, n]);
+                    }
+                }
+            }
+        }
+    }
+    v
+    },
+    reference(x): {
+    let apply = |c0: f64, n: f64| c0 + x[2] * n + x[3] * n * n;
+    // Water nD20 1.33299 (common practice) as the standard's value; a shift
+    // over 0.01 is refused (the routine's documented limit).
+    let shift = 1.33299 - apply(x[1], x[0]);
+    (shift.abs() <= 0.01).then(|| apply(x[1] + shift, x[4]))
+    },
+    eval(x): {
+    let c = Correction { c0: x[1], c1: x[2], c2: x[3] };
+    let water = Standard { measured: x[0], reference: S::from_f64(1.33299)? };
+    rezero(c, water)?.apply(x[4])
     }
 }
 
