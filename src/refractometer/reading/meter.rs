@@ -215,11 +215,13 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
             self.temperature_sum = 0;
         }
         // Positions are under 2^28 (4096 pixels · 2^16): a deviation squared
-        // is under 2^56, sixteen of them under 2^60.
+        // is under 2^56, sixteen of them under 2^60. A frame's own
+        // uncertainty is any i32: its square saturates.
         let d = i64::from(b.position) - i64::from(self.first);
         self.deviation_sum += d;
         self.deviation_squares += d * d;
-        self.variance_sum += i64::from(b.uncertainty) * i64::from(b.uncertainty);
+        let u = i64::from(b.uncertainty);
+        self.variance_sum = self.variance_sum.saturating_add(u.saturating_mul(u));
         self.temperature_sum += i64::from(t);
         self.contrast = b.contrast();
         self.count += 1;
@@ -234,11 +236,18 @@ impl<'a, S: Scalar> BrixMeter<'a, S> {
         // Type B: √(Σu²)/n. Type A: √((Σd² − (Σd)²/n)/n) · 1/√(n − 1), the
         // last factor from a table (n is 2, 4, 8 or 16): no division.
         let type_b = isqrt_u64(self.variance_sum.unsigned_abs()) >> log2;
-        let ss = self.deviation_squares - ((self.deviation_sum * self.deviation_sum) >> log2);
-        let rms = isqrt_u64(ss.unsigned_abs() >> log2);
-        // 2^16/√(n − 1) for n = 2, 4, 8, 16; none for one frame.
-        const PER_ROOT: [u64; 5] = [0, 65_536, 37_837, 24_770, 16_921];
-        let type_a = (rms * PER_ROOT.get(log2 as usize).copied().unwrap_or(0)) >> 16;
+        // (Σd)² fits i64 while |Σd| < 2^31 (frames of one sample lie within
+        // pixels of each other); frames 2^31/65536 pixels apart in sum are no
+        // reading: their scatter is reported as the largest uncertainty.
+        let type_a = if self.deviation_sum.unsigned_abs() < 1 << 31 {
+            let ss = self.deviation_squares - ((self.deviation_sum * self.deviation_sum) >> log2);
+            let rms = isqrt_u64(ss.unsigned_abs() >> log2);
+            // 2^16/√(n − 1) for n = 2, 4, 8, 16; none for one frame.
+            const PER_ROOT: [u64; 5] = [0, 65_536, 37_837, 24_770, 16_921];
+            (rms * PER_ROOT.get(log2 as usize).copied().unwrap_or(0)) >> 16
+        } else {
+            u64::MAX
+        };
         let t_mean = i32::try_from(self.temperature_sum >> log2).map_err(|_| Error::Overflow)?;
         let temperature = S::from_ratio_pow2(t_mean, 16)?;
         Ok(Some(Mean {
