@@ -21,7 +21,7 @@
 //!
 //! Cost of a new degree: 78 corrections through [`SucroseCompensation`]
 //! (per row, its 20 grid points and 19 segment middles).
-//! State: 2 × 20 values.
+//! State: two rows of 19 segments × 3 values (536 bytes in I8F24 or f32).
 
 use super::compensation::SucroseCompensation;
 use super::reading::brix_cells::{brix_of_nd, nd_of_brix};
