@@ -500,7 +500,7 @@ fn restore_refuses_foreign_records() {
     let other = CalibrationRecord::factory(650_000);
     assert_eq!(
         inst.restore(&other),
-        Err(Error::OutOfRange(embedded_optics::Quantity::Wavelength))
+        Err(Error::RecordMismatch("led_wavelength_pm"))
     );
     // Coefficients no calibration makes: water moved by 0.05, or scaled by 1.2.
     for c in [

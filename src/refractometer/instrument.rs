@@ -340,10 +340,11 @@ where
         compensation: C,
         scale: T,
     ) -> Result<Self, Error> {
-        if !(1..=FRAMES_MAX).contains(&d.frames_per_reading)
-            || !(2..=SETTLE_MAX).contains(&usize::from(d.settle_readings))
-        {
-            return Err(Error::OutOfRange(Quantity::Value));
+        if !(1..=FRAMES_MAX).contains(&d.frames_per_reading) {
+            return Err(Error::InvalidField("frames_per_reading"));
+        }
+        if !(2..=SETTLE_MAX).contains(&usize::from(d.settle_readings)) {
+            return Err(Error::InvalidField("settle_readings"));
         }
         let wavelength = described(d.led_wavelength_nm / 1000.0, 0.3, 1.1, Quantity::Wavelength)?;
         // A model that refuses the LED here would refuse every reading.
@@ -420,15 +421,13 @@ where
     /// Restores the correction from a decoded record (at boot, from
     /// [`choose_slots`](super::record::choose_slots)`.current`). Refused, with
     /// the instrument unchanged: a record for another LED wavelength
-    /// (`OutOfRange(Wavelength)`), and coefficients no calibration would have
+    /// ([`Error::RecordMismatch`]), and coefficients no calibration would have
     /// made, moving water's index by more than 0.01 or scaling it by more than
     /// 10 % (`OutOfRange(RefractiveIndex)`). Standards read before are
     /// forgotten: a new span needs a new zero. With a factory curve the record
     /// restores the field adjustment on top of it.
     pub fn restore(&mut self, record: &CalibrationRecord) -> Result<Correction<S>, Error> {
-        if record.led_wavelength_pm != self.led_pm {
-            return Err(Error::OutOfRange(Quantity::Wavelength));
-        }
+        record.check_made_for(self.led_pm)?;
         let c = record.correction::<S>()?;
         let zero_temperature = S::from_ratio(record.zero_temperature_mc, 1000)?;
         let water = crate::lit!(S, 1.333);
@@ -777,7 +776,7 @@ where
     /// curve, the next one sets the quadratic through all three and each
     /// further one replaces that third; with one, each further standard
     /// replaces the span (offset and gain on top of the curve, which stays).
-    /// Without a zero first: `OutOfRange(RefractiveIndex)`.
+    /// Without a zero first: [`Error::NotZeroed`].
     pub fn add_standard<W2, C2>(
         &mut self,
         avg: &Averaged<S>,
@@ -789,8 +788,7 @@ where
         W2: WavelengthCorrection<S> + ?Sized,
         C2: SampleCompensation<S> + ?Sized,
     {
-        let missing = Error::OutOfRange(Quantity::RefractiveIndex);
-        let zero = self.standards[0].ok_or(missing)?;
+        let zero = self.standards[0].ok_or(Error::NotZeroed)?;
         let new = self.sample_standard(avg, nd20, dispersion, compensation)?;
         let new = self.onto_factory(new)?;
         let c = match (self.factory.is_some(), self.standards[1]) {
