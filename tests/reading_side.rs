@@ -7,7 +7,8 @@
 //! The exact models are themselves checked against the published tables in
 //! `tests/world_*.rs`; here they are the reference (f64).
 
-use embedded_optics::media::glass::Glass;
+mod support;
+
 use embedded_optics::media::water::Water;
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::TradeScale;
@@ -15,71 +16,22 @@ use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
 use embedded_optics::refractometer::calibration::{standard_reference, water_reference};
 use embedded_optics::refractometer::compensation::SucroseCompensation;
 use embedded_optics::refractometer::forward::{SampleState, SensorScene, render};
-use embedded_optics::refractometer::geometry::{Geometry, GeometryDescription};
+use embedded_optics::refractometer::geometry::Geometry;
 use embedded_optics::refractometer::instrument::{Instrument, InstrumentDescription};
-use embedded_optics::refractometer::prepare::{self, Prepared};
+use embedded_optics::refractometer::prepare;
 use embedded_optics::refractometer::reading::meter::{BrixMeter, MeterDesign};
 use embedded_optics::refractometer::reading::prepared::CorrectionGrid;
 use embedded_optics::refractometer::reading::tables::{JUICE_LAB_GRID, OIV_GRID};
 use embedded_optics::refractometer::scales::{SucroseBrix, apparent_brix};
-use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::refractometer::wavelength::WaterLikeDispersion;
 use embedded_optics::rng::Rng;
 use embedded_optics::{Error, Scalar};
 use fixed::types::{I8F24, I32F32};
-use std::sync::OnceLock;
+use support::handheld::{self, DIVIDER, GEOMETRY, LED_NM, PIXELS, data, ntc, prism};
 
-/// An invented handheld (the crate's doc example's): 512 pixels of 14 µm,
-/// 30 mm optics, apex 53.5°, dense flint prism, 590 nm LED.
-const GEOMETRY: GeometryDescription = GeometryDescription {
-    pixel_pitch_um: 14.0,
-    focal_length_mm: 30.0,
-    axis_offset_px: 256.0,
-    apex_angle_deg: 53.5,
-    reversed: false,
-};
-const PIXELS: u16 = 512;
-const LED_NM: f64 = 590.0;
-const DIVIDER: Divider = Divider {
-    placement: Placement::ThermistorLowSide,
-    reference_ohms: 10_000,
-    adc_bits: 12,
-    rail_margin_codes: 4,
-};
-
-fn prism() -> Glass<f64> {
-    Glass::from_nd_vd(1.7174, 29.5, 4.0).unwrap()
-}
-fn ntc() -> Beta<f64> {
-    Beta {
-        beta_k: 3950,
-        r0_ohms: 10_000,
-        t0_c: 25.0,
-    }
-}
-fn data() -> &'static Prepared {
-    static D: OnceLock<Prepared> = OnceLock::new();
-    D.get_or_init(|| {
-        prepare::prepare(&GEOMETRY, &prism(), LED_NM, PIXELS, &DIVIDER, &ntc()).unwrap()
-    })
-}
+/// The invented handheld's design with `grid`, one frame a reading.
 fn design(grid: CorrectionGrid<'static>) -> MeterDesign<'static> {
-    let d = data();
-    MeterDesign {
-        boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
-        map: d.map(),
-        water: d.water(),
-        thermistor: d.thermistor(),
-        dispersion_ratio_q30: d.dispersion_ratio_q30,
-        compensation: grid,
-        led_wavelength_pm: 590_000,
-        frames_log2: 0,
-        temperature_uncertainty_mc: 100,
-        calibration_uncertainty_e8: 2000,
-        settle_readings: 3,
-        settle_band_e8: 2000,
-        settle_band_mc: 100,
-    }
+    handheld::design(grid, 0)
 }
 
 /// The source of `src/refractometer/reading/tables.rs` from today's exact

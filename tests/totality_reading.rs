@@ -7,68 +7,21 @@
 mod support;
 
 use embedded_optics::Scalar;
-use embedded_optics::media::glass::Glass;
-use embedded_optics::refractometer::boundary::{BoundaryConfig, EdgeDirection};
-use embedded_optics::refractometer::geometry::GeometryDescription;
-use embedded_optics::refractometer::prepare::{self, Prepared};
 use embedded_optics::refractometer::reading::brix_cells::{
     apparent_of_nd_with_slope, nd_of_apparent,
 };
 use embedded_optics::refractometer::reading::meter::{BrixMeter, Mean, MeterDesign};
 use embedded_optics::refractometer::reading::tables::{JUICE_LAB_GRID, OIV_GRID};
 use embedded_optics::refractometer::record::CalibrationRecord;
-use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use fixed::types::{I8F24, I32F32};
 use proptest::prelude::*;
 use std::sync::OnceLock;
+use support::handheld::{self, data};
 use support::inputs::{any_float, finite, to};
-
-fn data() -> &'static Prepared {
-    static D: OnceLock<Prepared> = OnceLock::new();
-    D.get_or_init(|| {
-        let geometry = GeometryDescription {
-            pixel_pitch_um: 14.0,
-            focal_length_mm: 30.0,
-            axis_offset_px: 256.0,
-            apex_angle_deg: 53.5,
-            reversed: false,
-        };
-        let divider = Divider {
-            placement: Placement::ThermistorLowSide,
-            reference_ohms: 10_000,
-            adc_bits: 12,
-            rail_margin_codes: 4,
-        };
-        let ntc = Beta {
-            beta_k: 3950,
-            r0_ohms: 10_000,
-            t0_c: 25.0,
-        };
-        let prism = Glass::from_nd_vd(1.7174, 29.5, 4.0).unwrap();
-        prepare::prepare(&geometry, &prism, 590.0, 512, &divider, &ntc).unwrap()
-    })
-}
 
 fn design() -> &'static MeterDesign<'static> {
     static D: OnceLock<MeterDesign<'static>> = OnceLock::new();
-    D.get_or_init(|| {
-        let d = data();
-        MeterDesign {
-            boundary: BoundaryConfig::twelve_bit(EdgeDirection::DarkToBright),
-            map: d.map(),
-            water: d.water(),
-            thermistor: d.thermistor(),
-            dispersion_ratio_q30: d.dispersion_ratio_q30,
-            compensation: OIV_GRID,
-            led_wavelength_pm: 590_000,
-            frames_log2: 1,
-            temperature_uncertainty_mc: 100,
-            calibration_uncertainty_e8: 2000,
-            settle_readings: 3,
-            settle_band_e8: 2000,
-            settle_band_mc: 100,
-        }
-    })
+    D.get_or_init(|| handheld::design(OIV_GRID, 1))
 }
 
 fn evaluators<S: Scalar>(x: f64, t: f64, position: i32, code: u16) {

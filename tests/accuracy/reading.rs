@@ -8,48 +8,20 @@
 //! 10 kΩ on a 12-bit ADC).
 
 use crate::harness::{Budget, span};
-use embedded_optics::media::glass::Glass;
 use embedded_optics::media::water::Water;
 use embedded_optics::media::{IndexReference, Medium};
 use embedded_optics::refractometer::TradeScale;
 use embedded_optics::refractometer::calibration::water_reference;
 use embedded_optics::refractometer::compensation::SucroseCompensation;
-use embedded_optics::refractometer::geometry::{Geometry, GeometryDescription};
-use embedded_optics::refractometer::prepare::{self, Prepared};
+use embedded_optics::refractometer::geometry::Geometry;
 use embedded_optics::refractometer::reading::brix_cells::{apparent_of_nd, nd_of_apparent};
 use embedded_optics::refractometer::reading::tables::{JUICE_LAB_GRID, OIV_GRID};
 use embedded_optics::refractometer::scales::{SucroseBrix, apparent_brix};
-use embedded_optics::refractometer::thermistor::{Beta, Divider, Placement};
 use embedded_optics::{Error, Quantity};
-use std::sync::OnceLock;
 
-const GEOMETRY: GeometryDescription = GeometryDescription {
-    pixel_pitch_um: 14.0,
-    focal_length_mm: 30.0,
-    axis_offset_px: 256.0,
-    apex_angle_deg: 53.5,
-    reversed: false,
-};
-const DIVIDER: Divider = Divider {
-    placement: Placement::ThermistorLowSide,
-    reference_ohms: 10_000,
-    adc_bits: 12,
-    rail_margin_codes: 4,
-};
-fn ntc() -> Beta<f64> {
-    Beta {
-        beta_k: 3950,
-        r0_ohms: 10_000,
-        t0_c: 25.0,
-    }
-}
-fn prism() -> Glass<f64> {
-    Glass::from_nd_vd(1.7174, 29.5, 4.0).unwrap()
-}
-fn data() -> &'static Prepared {
-    static D: OnceLock<Prepared> = OnceLock::new();
-    D.get_or_init(|| prepare::prepare(&GEOMETRY, &prism(), 590.0, 512, &DIVIDER, &ntc()).unwrap())
-}
+#[path = "../support/handheld.rs"]
+mod handheld;
+use handheld::{DIVIDER, GEOMETRY, data, ntc, prism};
 
 case! {
     pub struct MapIndex;

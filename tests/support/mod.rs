@@ -8,6 +8,7 @@
 //! the chain's optics and arithmetic, not the models.
 #![allow(dead_code)]
 
+pub mod handheld;
 pub mod inputs;
 
 use embedded_optics::media::{IndexReference, Medium};
